@@ -1,0 +1,1 @@
+"""The prover: preprocessing, a fast exact kernel, the covering procedure and certificate emission."""
