@@ -1,0 +1,314 @@
+"""Replay of covering trees: rules LEMMA, COVER, BOUND, DIRECT, NULLIFIED, LIFT, PROJECT.
+
+Each rule of SOUNDNESS.md §3–§4 is one function below, named after it.  The
+top function, :func:`check_node`, reads like the induction of SOUNDNESS.md §4:
+realize the node's intervals at its sample, require that they cover the line,
+justify each, and return what the node passes up to its parent's cell.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from itertools import combinations
+
+from flint import fmpz_mpoly
+
+from certformat.certificate import NEG_INF, POS_INF, Certificate, Lemma, Node, Segment
+from certformat.formula import relation_holds
+
+from . import polys as P
+from .algebraic import KernelError, RealAlgebraic, compare
+from .limits import Limits, Rejection
+from .signs import is_nullified, real_roots_at, sign_at
+
+
+@dataclass
+class Replay:
+    """What the rules read: the certificate's exact objects and the lemma being checked."""
+    cert: Certificate
+    polys: dict[str, fmpz_mpoly]
+    numbers: dict[str, RealAlgebraic]
+    literals: dict[str, tuple[fmpz_mpoly, str]] = field(default_factory=dict)
+    """Literal text (``a3``, ``~a3``) of the current lemma -> (polynomial, effective relation)."""
+    visited: set[str] = field(default_factory=set)
+    limits: Limits = field(default_factory=Limits)
+
+    @property
+    def nvars(self) -> int:
+        return len(self.cert.variables)
+
+
+def check_lemma(r: Replay, lemma: Lemma, literals: dict[str, tuple[fmpz_mpoly, str]]) -> None:
+    """Rule LEMMA: the covering rooted at ``lemma.root`` refutes the lemma's literals."""
+    r.literals = literals
+    root = r.cert.nodes.get(lemma.root)
+    if root is None:
+        raise Rejection("LEMMA", f"covering node {lemma.root} is not declared", lemma.line)
+    if root.sample:
+        raise Rejection("LEMMA", f"root node {root.id} must have the empty sample", root.line)
+    check_node(r, root, ())
+
+
+def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[tuple]:
+    """Rule COVER: the node's intervals cover the line at its sample; returns what it passes up."""
+    r.limits.tick(node.line)
+    if node.id in r.visited:
+        raise Rejection("COVER", f"node {node.id} is used twice", node.line)
+    r.visited.add(node.id)
+    if node.sample != prefix:
+        raise Rejection("COVER", f"node {node.id} has sample {' '.join(node.sample) or '-'}, "
+                        f"expected {' '.join(prefix) or '-'}", node.line)
+    sample = tuple(number(r, n, node.line) for n in prefix)
+    level = len(sample) + 1
+    if level > r.nvars:
+        raise Rejection("COVER", f"node {node.id} is at level {level}, beyond the last variable",
+                        node.line)
+    require_sample_degree(r, sample, node.line)
+    if not node.segments:
+        raise Rejection("COVER", f"node {node.id} has no intervals", node.line)
+    realized = [realize_interval(r, seg, sample, level) for seg in node.segments]
+    require_covers_line(realized, node)
+    relevant: list[fmpz_mpoly] = []
+    up: set[tuple] = set()
+    for seg, (low, high) in zip(node.segments, realized):
+        r.limits.tick(seg.line)
+        relevant += [r.polys[b.poly] for b in (seg.interval.low, seg.interval.high)
+                     if b not in (NEG_INF, POS_INF)]
+        t = number(r, seg.sample, seg.line)
+        require_inside(t, low, high, seg)
+        if seg.literal is not None:
+            relevant += check_direct(r, seg, sample, level, t, low, high, up)
+        else:
+            relevant += check_lift(r, seg, node, sample, level, t, low, high)
+    return up | project(r, relevant, sample, level, node)
+
+
+def number(r: Replay, nid: str, line: int) -> RealAlgebraic:
+    """The checked number ``nid``."""
+    if nid not in r.numbers:
+        raise Rejection("NUMBER", f"number {nid} is not declared", line)
+    return r.numbers[nid]
+
+
+def require_sample_degree(r: Replay, sample, line: int) -> None:
+    """Rule LIMITS: the sample's algebraic degree stays within the configured bound."""
+    total = 1
+    for a in sample:
+        total *= 1 if a.is_rational() else a.poly.degree()
+    if total > r.limits.max_sample_degree:
+        raise Rejection("LIMITS", f"sample of algebraic degree {total} exceeds the limit "
+                        f"{r.limits.max_sample_degree}", line)
+
+
+def bound_value(r: Replay, bound, sample, level: int, line: int):
+    """Rule BOUND: ``pK#j`` is the j-th distinct real root of pK(sample, x_level)."""
+    if bound in (NEG_INF, POS_INF):
+        return bound
+    if bound.poly not in r.polys:
+        raise Rejection("BOUND", f"polynomial {bound.poly} is not declared", line)
+    q = r.polys[bound.poly]
+    if P.level(q) > level:
+        raise Rejection("BOUND", f"{bound.poly} involves a variable after x{level}", line)
+    try:
+        roots = real_roots_at(q, sample)
+    except KernelError as err:
+        raise Rejection("BOUND", f"{bound}: {err}", line) from None
+    if not 1 <= bound.index <= len(roots):
+        raise Rejection("BOUND", f"{bound}: {bound.poly} has {len(roots)} real roots here, "
+                        f"not {bound.index}", line)
+    return roots[bound.index - 1]
+
+
+def realize_interval(r: Replay, seg: Segment, sample, level: int):
+    """The exact (low, high) of a segment; equal values for a point interval."""
+    iv = seg.interval
+    if iv.low == POS_INF or iv.high == NEG_INF or (iv.point and iv.low in (NEG_INF, POS_INF)):
+        raise Rejection("BOUND", f"malformed interval {iv}", seg.line)
+    low = bound_value(r, iv.low, sample, level, seg.line)
+    high = low if iv.point else bound_value(r, iv.high, sample, level, seg.line)
+    if not iv.point and less(high, low, inclusive=True):
+        raise Rejection("BOUND", f"interval {iv} is empty", seg.line)
+    return low, high
+
+
+def less(a, b, inclusive=False) -> bool:
+    """``a < b`` (or ``a <= b``) for numbers and the infinities."""
+    if a == NEG_INF or b == POS_INF:
+        return a != b or inclusive
+    if a == POS_INF or b == NEG_INF:
+        return inclusive and a == b
+    c = compare(a, b)
+    return c < 0 or (inclusive and c == 0)
+
+
+def require_inside(t: RealAlgebraic, low, high, seg: Segment) -> None:
+    """The segment's sample lies in its interval: equal to a point, strictly inside otherwise."""
+    inside = (compare(t, low) == 0) if seg.interval.point else (less(low, t) and less(t, high))
+    if not inside:
+        raise Rejection("COVER", f"sample {seg.sample} is not inside {seg.interval}", seg.line)
+
+
+def require_covers_line(realized, node: Node) -> None:
+    """Rule COVER: every endpoint and every gap between consecutive endpoints is covered."""
+    ends: list[RealAlgebraic] = []
+    for low, high in realized:
+        for e in (low, high):
+            if e not in (NEG_INF, POS_INF) and not any(compare(e, f) == 0 for f in ends):
+                ends.append(e)
+    ends.sort(key=_Ordered)
+    for e in ends:
+        if not any(_contains_point(iv, e, seg.interval.point)
+                   for iv, seg in zip(realized, node.segments)):
+            raise Rejection("COVER", f"node {node.id}: a bound value is not covered", node.line)
+    gaps = list(zip([NEG_INF] + ends, ends + [POS_INF]))
+    for a, b in gaps:
+        if not any(not seg.interval.point and less(iv[0], a, True) and less(b, iv[1], True)
+                   for iv, seg in zip(realized, node.segments)):
+            raise Rejection("COVER", f"node {node.id}: the intervals leave a gap", node.line)
+
+
+def _contains_point(iv, e, point: bool) -> bool:
+    low, high = iv
+    return compare(low, e) == 0 if point else (less(low, e) and less(e, high))
+
+
+class _Ordered:
+    """Sort key for real algebraic numbers by exact comparison."""
+
+    def __init__(self, a):
+        self.a = a
+
+    def __lt__(self, other):
+        return compare(self.a, other.a) < 0
+
+
+def check_direct(r: Replay, seg: Segment, sample, level: int, t, low, high, up: set) -> list:
+    """Rule DIRECT: the literal has one sign on the interval and that sign falsifies it."""
+    text = str(seg.literal)
+    if text not in r.literals:
+        raise Rejection("DIRECT", f"literal {text} is not a literal of this lemma", seg.line)
+    p, rel = r.literals[text]
+    if P.level(p) > level:
+        raise Rejection("DIRECT", f"{text} involves a variable after x{level}", seg.line)
+    if is_nullified(p, sample):
+        return check_nullified(r, seg, p, rel, level, up)
+    roots = real_roots_at(p, sample) if P.level(p) == level else []
+    if seg.interval.point:
+        value_sign = sign_at(p, sample + (low,))
+    else:
+        if any(less(low, z) and less(z, high) for z in roots):
+            raise Rejection("DIRECT", f"{text} has a root inside {seg.interval}", seg.line)
+        value_sign = sign_at(p, sample + (t,))
+    if relation_holds(rel, value_sign):
+        raise Rejection("DIRECT", f"{text} holds on {seg.interval} (sign {value_sign})", seg.line)
+    return [p]
+
+
+def check_nullified(r: Replay, seg: Segment, p, rel: str, level: int, up: set) -> list:
+    """Rule NULLIFIED: p vanishes identically over the sample, which falsifies ``<``, ``>``, ``!=``."""
+    if rel not in ("<", ">", "!="):
+        raise Rejection("NULLIFIED", f"{seg.literal} vanishes identically here, which does "
+                        f"not falsify relation {rel}", seg.line)
+    for c in P.coefficients_in(p, level - 1):
+        if not c.is_zero():
+            up.update(P.key(f) for f in P.irreducible_factors(c))
+    return []
+
+
+def check_lift(r: Replay, seg: Segment, node: Node, sample, level: int, t, low, high) -> list:
+    """Rule LIFT: the child covers the next line; the declared set holds what it passes up and
+    its level-``level`` members' nearest roots around the sample are the interval's bounds."""
+    if level >= r.nvars:
+        raise Rejection("LIFT", "the last variable's intervals cannot lift", seg.line)
+    child = r.cert.nodes.get(seg.child)
+    if child is None:
+        raise Rejection("LIFT", f"node {seg.child} is not declared", seg.line)
+    declared = []
+    for pid in seg.keep:
+        if pid not in r.polys:
+            raise Rejection("LIFT", f"polynomial {pid} is not declared", seg.line)
+        if P.level(r.polys[pid]) > level:
+            raise Rejection("LIFT", f"declared {pid} involves a variable after x{level}", seg.line)
+        if not r.polys[pid].is_constant():
+            declared += P.irreducible_factors(r.polys[pid])
+    passed = check_node(r, child, node.sample + (seg.sample,))
+    keys = {P.key(f) for f in declared}
+    missing = passed - keys
+    if missing:
+        raise Rejection("PROJECT", f"projection not declared: {len(missing)} polynomial(s) that "
+                        f"node {child.id} passes up are missing from 'keep'", seg.line)
+    require_nearest_roots(r, seg, sample, level, t, low, high,
+                          [f for f in declared if P.level(f) == level])
+    return declared
+
+
+def require_nearest_roots(r: Replay, seg: Segment, sample, level: int, t, low, high, q) -> None:
+    """Rule LIFT (bounds): the interval is the sector or section of the declared set around t."""
+    roots = []
+    for f in q:
+        try:
+            roots += real_roots_at(f, sample)
+        except KernelError:
+            raise Rejection("LIFT", "a declared polynomial vanishes identically at the sample",
+                            seg.line) from None
+    on_root = any(compare(z, t) == 0 for z in roots)
+    if on_root != seg.interval.point:
+        raise Rejection("LIFT", f"{seg.interval} must be " +
+                        ("the point of the section through the sample" if on_root else
+                         "an open sector, the sample is on no declared section"), seg.line)
+    if on_root:
+        return
+    below = [z for z in roots if compare(z, t) < 0]
+    above = [z for z in roots if compare(z, t) > 0]
+    want_low = max(below, key=_Ordered) if below else NEG_INF
+    want_high = min(above, key=_Ordered) if above else POS_INF
+    if not (_same(low, want_low) and _same(high, want_high)):
+        raise Rejection("LIFT", f"{seg.interval} is not bounded by the nearest roots of the "
+                        "declared set around the sample", seg.line)
+
+
+def _same(a, b) -> bool:
+    if a in (NEG_INF, POS_INF) or b in (NEG_INF, POS_INF):
+        return a == b
+    return compare(a, b) == 0
+
+
+def project(r: Replay, relevant: list, sample, level: int, node: Node) -> set[tuple]:
+    """Rule PROJECT (conservative, SOUNDNESS.md §4): what the node passes up."""
+    main: dict[tuple, fmpz_mpoly] = {}
+    up: set[tuple] = set()
+    for g in relevant:
+        for f in P.irreducible_factors(g):
+            if P.level(f) == level:
+                main.setdefault(P.key(f), f)
+            else:
+                up.add(P.key(f))
+    var = level - 1
+    for f in main.values():
+        r.limits.tick(node.line)
+        up |= coefficient_chain(f, var, sample, node)
+        if P.degree_in(f, var) >= 2:
+            up |= nonzero_factors(P.discriminant(f, var), "discriminant", node)
+    for f, g in combinations(main.values(), 2):
+        r.limits.tick(node.line)
+        up |= nonzero_factors(P.resultant(f, g, var), "resultant", node)
+    return up
+
+
+def coefficient_chain(f, var: int, sample, node: Node) -> set[tuple]:
+    """Coefficients of f in x_level from the leading one to the first non-zero at the sample."""
+    out: set[tuple] = set()
+    for c in P.coefficients_in(f, var):
+        if c.is_zero():
+            continue
+        out |= {P.key(g) for g in P.irreducible_factors(c)} if not c.is_constant() else set()
+        if sign_at(c, sample) != 0:
+            return out
+    raise Rejection("PROJECT", f"node {node.id}: a characterization polynomial vanishes "
+                    "identically at the sample (nullification)", node.line)
+
+
+def nonzero_factors(g, what: str, node: Node) -> set[tuple]:
+    """The irreducible factors of a projection polynomial, which must not be zero."""
+    if g.is_zero():
+        raise Rejection("PROJECT", f"node {node.id}: a {what} is identically zero", node.line)
+    return {P.key(f) for f in P.irreducible_factors(g)} if not g.is_constant() else set()

@@ -1,0 +1,79 @@
+"""Polynomials as the checker needs them: exact flint objects in the certificate's order.
+
+Every polynomial here lives in ``poly_context(n)`` with generators ``x0 … x(n-1)``
+standing for the certificate's ``x1 … xn`` (lex order, so ``x(n-1)`` is the
+last variable).  "Level" of a polynomial is 1 + the index of its last variable
+(0 for constants), as in cylindrical algebraic decomposition (Collins 1975).
+"""
+from __future__ import annotations
+
+from flint import fmpz_mpoly
+
+from certformat.formula import poly_context
+
+
+def to_flint(poly: dict[tuple[int, ...], int], nvars: int) -> fmpz_mpoly:
+    """The flint polynomial of an exponent dictionary over ``nvars`` variables."""
+    ctx = poly_context(nvars)
+    if nvars == 0:
+        return ctx.from_dict({(0,): c for e, c in poly.items()})
+    return ctx.from_dict(dict(poly))
+
+
+def permuted(poly: fmpz_mpoly, order: list[int]) -> fmpz_mpoly:
+    """Rename problem variable ``order[k]`` to certificate variable ``k`` (0-based)."""
+    ctx = poly.context()
+    return ctx.from_dict({tuple(e[j] for j in order): c for e, c in poly.to_dict().items()})
+
+
+def level(f: fmpz_mpoly) -> int:
+    """1 + index of the last variable occurring in ``f``; 0 for a constant."""
+    degs = f.degrees()
+    return max((k + 1 for k, d in enumerate(degs) if d > 0), default=0)
+
+
+def key(f: fmpz_mpoly) -> tuple:
+    """A hashable identity of ``f`` as an exact object."""
+    return tuple(sorted(f.to_dict().items()))
+
+
+def normalized(f: fmpz_mpoly) -> fmpz_mpoly:
+    """``f`` made primitive with positive leading coefficient (lex), as atoms are."""
+    c = f.content()
+    if c != 1:
+        f = f.context().from_dict({e: v // c for e, v in f.to_dict().items()})
+    return -f if f.leading_coefficient() < 0 else f
+
+
+def irreducible_factors(f: fmpz_mpoly) -> list[fmpz_mpoly]:
+    """The distinct non-constant irreducible factors of ``f``, normalized (flint's factorization)."""
+    if f.is_zero():
+        raise ValueError("factorization of the zero polynomial")
+    _, factors = f.factor()
+    return [normalized(g) for g, _ in factors if not g.is_constant()]
+
+
+def coefficients_in(f: fmpz_mpoly, var: int) -> list[fmpz_mpoly]:
+    """Coefficients of ``f`` as a polynomial in variable ``var``, leading one first."""
+    ctx = f.context()
+    buckets: dict[int, dict] = {}
+    for e, c in f.to_dict().items():
+        rest = e[:var] + (0,) + e[var + 1:]
+        buckets.setdefault(e[var], {})[rest] = c
+    top = max(buckets, default=0)
+    return [ctx.from_dict(buckets.get(d, {})) for d in range(top, -1, -1)]
+
+
+def degree_in(f: fmpz_mpoly, var: int) -> int:
+    """Degree of ``f`` in variable ``var``."""
+    return f.degrees()[var]
+
+
+def discriminant(f: fmpz_mpoly, var: int) -> fmpz_mpoly:
+    """Discriminant of ``f`` with respect to ``var`` (flint)."""
+    return f.discriminant(f.context().names()[var])
+
+
+def resultant(f: fmpz_mpoly, g: fmpz_mpoly, var: int) -> fmpz_mpoly:
+    """Sylvester resultant of ``f`` and ``g`` with respect to ``var`` (flint)."""
+    return f.resultant(g, f.context().names()[var])
