@@ -12,7 +12,7 @@ from fractions import Fraction
 from pathlib import Path
 
 from lark import Lark, Token, Transformer, v_args
-from lark.exceptions import LarkError, UnexpectedInput
+from lark.exceptions import LarkError, UnexpectedInput, VisitError
 
 from .certificate import (NEG_INF, POS_INF, AtomClaim, Certificate, Inference, Interval,
                           Lemma, Literal, Node, Number, Poly, Root, Segment, VarDecl)
@@ -29,9 +29,6 @@ MAX_CERTIFICATE_BYTES = 256 * 1024 * 1024
 @v_args(inline=True)
 class _Statements(Transformer):
     """One small method per statement kind; each returns (kind, line, payload)."""
-
-    def __init__(self, nvars_hint=None):
-        super().__init__()
 
     def rational(self, *toks):
         sign = -1 if toks and toks[0].type == "SIGN" and toks[0] == "-" else 1
@@ -132,10 +129,7 @@ def read_certificate(text: str, path: str = "<certificate>") -> Certificate:
     statements = tree.children
     if not statements or statements[0].data != "header":
         raise InputError("certificate must start with 'tessella 1 unsat|sat'", path, 1)
-    try:
-        return _build(statements, path)
-    except ValueError as err:
-        raise InputError(f"certificate value error: {err}", path) from None
+    return _build(statements, path)
 
 
 def _build(statements, path: str) -> Certificate:
@@ -149,7 +143,11 @@ def _build(statements, path: str) -> Certificate:
     current: Node | None = None
     for st in statements[1:]:
         line = st.meta.line
-        kids = [transform.transform(c) if not isinstance(c, Token) else c for c in st.children]
+        try:
+            kids = [transform.transform(c) if not isinstance(c, Token) else c
+                    for c in st.children]
+        except VisitError as err:
+            raise InputError(f"bad value: {err.orig_exc}", path, line) from None
 
         def declare(ident: str):
             if ident in cert.lines:
