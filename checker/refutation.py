@@ -21,11 +21,11 @@ def unit_propagation_conflicts(clauses: list[tuple[int, ...]], assumed: set[int]
         for clause in clauses:
             if any(lit in true for lit in clause):
                 continue
-            open_lits = [lit for lit in clause if -lit not in true]
+            open_lits = {lit for lit in clause if -lit not in true}
             if not open_lits:
                 return True
             if len(open_lits) == 1:
-                true.add(open_lits[0])
+                true.add(next(iter(open_lits)))
                 changed = True
     return False
 
