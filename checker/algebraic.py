@@ -1,0 +1,243 @@
+"""Real algebraic numbers for the checker: exact, small, and written to be audited.
+
+A real algebraic number is a defining integer polynomial with an isolating
+rational interval (:class:`RealAlgebraic`).  Everything here is decided by exact
+rational arithmetic; an ``arb`` ball is only ever *produced* (:func:`enclosure`),
+never consulted to decide.
+
+Algorithms, each with the theorem it rests on:
+
+* **Root counting** -- Sturm's theorem (Sturm 1829; see Basu, Pollack, Roy,
+  *Algorithms in Real Algebraic Geometry*, ch. 2): for a squarefree ``p`` and
+  ``a < b`` that are not roots of ``p``, the number of real roots of ``p`` in
+  ``(a, b)`` is ``V(a) - V(b)``, where ``V(x)`` counts the sign changes in the
+  Sturm sequence ``p, p', -rem(p, p'), ...`` evaluated at ``x``.  Sequences are
+  computed over the rationals (``fmpq_poly``), so every remainder is exact.
+* **Minimal form** -- a number is first reduced to the irreducible factor of its
+  defining polynomial that vanishes at it (factorization over the integers;
+  Gauss's lemma).  An irreducible polynomial is squarefree, and when its degree
+  is at least 2 it has no rational root, so a bisection midpoint is never a
+  root; a factor of degree 1 *is* the rational number.
+* **Bisection** -- a squarefree polynomial changes sign at each of its (simple)
+  roots and nowhere else; with exactly one root in ``(low, high)`` the sign at
+  the midpoint tells which half holds it (intermediate value theorem).
+* **Isolation** -- all real roots lie in ``(-B, B)`` with Cauchy's bound
+  ``B = 1 + max_i |a_i / a_n|`` (Cauchy 1829); split by Sturm counts until each
+  interval holds one root.
+* **Equality** -- two irreducible primitive polynomials with a common root are
+  equal up to sign (the minimal polynomial is unique), so two numbers are equal
+  iff their minimal forms share the polynomial and a root in the intersection
+  of their intervals.  Unequal numbers are separated by bisecting both.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from fractions import Fraction
+from functools import cmp_to_key
+
+from flint import arb, ctx, fmpq, fmpq_poly, fmpz, fmpz_poly
+
+
+class KernelError(Exception):
+    """A claim about numbers that does not hold."""
+
+
+def _sign(value) -> int:
+    """The sign -1, 0 or 1 of an exact number."""
+    return (value > 0) - (value < 0)
+
+
+def _to_fmpq(q) -> fmpq:
+    """An exact rational from an ``fmpq``, ``int``, ``fmpz`` or ``Fraction``."""
+    if isinstance(q, Fraction):
+        return fmpq(q.numerator, q.denominator)
+    if isinstance(q, (fmpq, fmpz, int)):
+        return fmpq(q)
+    raise TypeError(f"not an exact rational: {q!r}")
+
+
+@dataclass(frozen=True)
+class RealAlgebraic:
+    """The unique real root of `poly` in the open interval (low, high); or, when low == high, the rational low (and then poly(low) == 0)."""
+    poly: fmpz_poly
+    low: fmpq
+    high: fmpq
+
+    def __post_init__(self):
+        if not (isinstance(self.poly, fmpz_poly) and isinstance(self.low, fmpq)
+                and isinstance(self.high, fmpq)):
+            raise TypeError("RealAlgebraic needs an fmpz_poly and two fmpq bounds")
+
+    @staticmethod
+    def rational(q) -> RealAlgebraic:
+        """The rational q = num/den, defined by den*x - num."""
+        q = _to_fmpq(q)
+        return RealAlgebraic(fmpz_poly([-q.p, q.q]), q, q)
+
+    def __hash__(self):
+        """Structural, like ``==`` (numeric equality is :func:`compare`)."""
+        return hash((tuple(self.poly.coeffs()), self.low, self.high))
+
+    def is_rational(self) -> bool:
+        """Whether the number is given as the point interval [low, low]."""
+        return self.low == self.high
+
+
+# --------------------------------------------------------------------------
+# Root counting.
+
+def squarefree_part(p: fmpz_poly) -> fmpq_poly:
+    """p / gcd(p, p'): the same roots, each simple (a multiple root is a root of p')."""
+    p = fmpq_poly(p)
+    return p // p.gcd(p.derivative())
+
+
+def sturm_sequence(p: fmpq_poly) -> list[fmpq_poly]:
+    """The Sturm sequence p, p', -rem(p, p'), ... down to the last non-zero remainder."""
+    seq = [p, p.derivative()]
+    while not seq[-1].is_zero():
+        seq.append(-(seq[-2] % seq[-1]))
+    return seq[:-1]
+
+
+def sign_changes(seq: list[fmpq_poly], x: fmpq) -> int:
+    """The number of sign changes in the values of `seq` at x, zeros dropped."""
+    signs = [s for s in (_sign(f(x)) for f in seq) if s != 0]
+    return sum(1 for u, v in zip(signs, signs[1:]) if u != v)
+
+
+def count_roots(seq: list[fmpq_poly], a: fmpq, b: fmpq) -> int:
+    """The number of real roots of squarefree p = seq[0] in (a, b), a < b not roots: Sturm's theorem."""
+    if not a < b or seq[0](a) == 0 or seq[0](b) == 0:
+        raise KernelError(f"Sturm count needs a < b, neither a root: ({a}, {b})")
+    return sign_changes(seq, a) - sign_changes(seq, b)
+
+
+def cauchy_bound(p: fmpz_poly) -> fmpq:
+    """1 + max |a_i / a_n|: every complex root of p is strictly smaller in modulus (Cauchy)."""
+    *lower, lead = p.coeffs()
+    return 1 + max((fmpq(abs(c), abs(lead)) for c in lower), default=fmpq(0))
+
+
+def check_isolating(a: RealAlgebraic) -> None:
+    """Raise KernelError unless `a` is a valid defining polynomial with an isolating interval (Sturm's theorem on the squarefree part)."""
+    if a.poly.degree() < 1:
+        raise KernelError(f"defining polynomial {a.poly} has degree < 1")
+    if a.low == a.high:
+        if a.poly(a.low) != 0:
+            raise KernelError(f"{a.low} is not a root of {a.poly}")
+        return
+    if a.low > a.high:
+        raise KernelError(f"empty interval ({a.low}, {a.high})")
+    s = squarefree_part(a.poly)
+    if s(a.low) == 0 or s(a.high) == 0:
+        raise KernelError(f"{a.poly} has a root at an end of ({a.low}, {a.high})")
+    n = count_roots(sturm_sequence(s), a.low, a.high)
+    if n != 1:
+        raise KernelError(f"{a.poly} has {n} roots in ({a.low}, {a.high}), not 1")
+
+
+# --------------------------------------------------------------------------
+# Minimal form, bisection, enclosures.
+
+def reduced(a: RealAlgebraic) -> RealAlgebraic:
+    """`a` checked and redefined by the irreducible factor that vanishes at it (a rational if that factor is linear)."""
+    check_isolating(a)
+    if a.is_rational():
+        return a
+    for g, _ in a.poly.factor()[1]:
+        if count_roots(sturm_sequence(fmpq_poly(g)), a.low, a.high) == 1:
+            if g.degree() == 1:
+                return RealAlgebraic.rational(fmpq(-g[0], g[1]))
+            return RealAlgebraic(g, a.low, a.high)
+    raise KernelError(f"no factor of {a.poly} has its root in ({a.low}, {a.high})")
+
+
+def _halve(a: RealAlgebraic) -> RealAlgebraic:
+    """The half of a's interval that holds it, `a` in minimal form (intermediate value theorem at a simple root)."""
+    if a.is_rational():
+        return a
+    mid = (a.low + a.high) / 2
+    at_mid = _sign(a.poly(mid))
+    if at_mid == 0:
+        return RealAlgebraic.rational(mid)
+    if at_mid == _sign(a.poly(a.low)):
+        return RealAlgebraic(a.poly, mid, a.high)
+    return RealAlgebraic(a.poly, a.low, mid)
+
+
+def refine(a: RealAlgebraic, width: fmpq) -> RealAlgebraic:
+    """`a` in minimal form with an isolating interval no wider than `width`, by bisection."""
+    a = reduced(a)
+    while a.high - a.low > width:
+        a = _halve(a)
+    return a
+
+
+def ball(a: RealAlgebraic) -> arb:
+    """An arb ball containing the closed interval [a.low, a.high] (at the current working precision)."""
+    return arb(a.low).union(arb(a.high))
+
+
+def enclosure(a: RealAlgebraic, prec: int) -> arb:
+    """A rigorous ball of radius about 2^-prec containing `a`, by bisection with exact sign tests."""
+    a = refine(a, fmpq(1, 2 ** prec))
+    with ctx.workprec(prec + 16):
+        return ball(a)
+
+
+# --------------------------------------------------------------------------
+# Comparison and roots of univariate polynomials.
+
+def _same_number(a: RealAlgebraic, b: RealAlgebraic) -> bool:
+    """Equality of two numbers in minimal form (uniqueness of the minimal polynomial)."""
+    if a.is_rational() or b.is_rational():
+        return a.is_rational() and b.is_rational() and a.low == b.low
+    if a.poly != b.poly and a.poly != -b.poly:
+        return False
+    low, high = max(a.low, b.low), min(a.high, b.high)
+    return low < high and count_roots(sturm_sequence(fmpq_poly(a.poly)), low, high) == 1
+
+
+def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:
+    """The exact sign of a - b: equality by minimal forms, otherwise bisect until the intervals are disjoint."""
+    a, b = reduced(a), reduced(b)
+    if _same_number(a, b):
+        return 0
+    while True:
+        if a.high <= b.low:
+            return -1
+        if b.high <= a.low:
+            return 1
+        a, b = _halve(a), _halve(b)
+
+
+def isolate(g: fmpz_poly) -> list[RealAlgebraic]:
+    """Isolating intervals for the real roots of g, irreducible of degree >= 2: Sturm bisection of (-B, B), B Cauchy's bound."""
+    seq = sturm_sequence(fmpq_poly(g))
+    bound = cauchy_bound(g)
+    pending, found = [(-bound, bound)], []
+    while pending:
+        low, high = pending.pop()
+        n = count_roots(seq, low, high)
+        if n == 1:
+            found.append(RealAlgebraic(g, low, high))
+        elif n > 1:
+            mid = (low + high) / 2
+            pending += [(low, mid), (mid, high)]
+    return found
+
+
+def real_roots(f: fmpz_poly) -> list[RealAlgebraic]:
+    """The distinct real roots of f != 0 in increasing order, each checked and defined by an irreducible factor of f."""
+    if f.is_zero():
+        raise KernelError("the zero polynomial has every number as a root")
+    roots = []
+    for g, _ in f.factor()[1]:
+        if g.degree() == 1:
+            roots.append(RealAlgebraic.rational(fmpq(-g[0], g[1])))
+        else:
+            roots += isolate(g)
+    for r in roots:
+        check_isolating(r)
+    return sorted(roots, key=cmp_to_key(compare))

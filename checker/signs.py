@@ -1,0 +1,163 @@
+"""Signs and roots of integer polynomials at real algebraic points (DESIGN §5).
+
+Every coordinate of a point is first put in minimal form
+(:func:`checker.algebraic.reduced`): checked, and defined by its irreducible
+polynomial ``d_i``; rational coordinates are then substituted exactly, which
+leaves ``q``, a positive integer multiple of ``p`` in the algebraic coordinates
+only (and, for roots, in ``x_k``).
+
+**Elimination.**  ``R = Res_{x_j}( ... Res_{x_i}(z - q, d_i) ..., d_j)`` over the
+algebraic coordinates that occur.  By the product formula for the resultant
+(``Res_x(F, d) = ± lc(d)^deg_x(F) · prod over roots b of d of F(b)``; e.g.
+Basu, Pollack, Roy, *Algorithms in Real Algebraic Geometry*, ch. 4),
+``R = c · prod (z - q(a', .))`` over all tuples ``a'`` of roots of the ``d_i``,
+with ``c`` a non-zero integer.  So ``R`` is never zero (its leading
+coefficient in ``z`` is a non-zero integer) and ``q(a)`` is a root of ``R``.
+
+**Sign at a point.**  Rational point: exact evaluation.  Otherwise an arb
+enclosure of ``q(a)`` (coordinates enclosed by bisection with exact sign
+tests) decides the sign when it excludes zero.  Zero is decided only by the
+root-gap rule: write ``R(z) = z^m · S(z)`` with ``S(0) != 0``.  If ``m = 0``,
+``q(a) != 0``.  Otherwise every non-zero root of ``R`` is a root of ``S`` and has
+modulus greater than ``|s_0| / (|s_0| + max_{j>=1} |s_j|)`` (Cauchy's bound
+applied to the reciprocal polynomial ``z^deg S · S(1/z)``); an enclosure
+strictly inside that radius proves ``q(a) = 0``.  The loop doubles the precision
+until one of the two happens, which it does: the enclosures shrink to ``q(a)``.
+(The working precision, set with flint's ``ctx.workprec``, affects only how
+tight a ball is; arb rounds outward, so every ball is rigorous.)
+
+**Roots over a point.**  Write ``R(z, x_k) = z^m · S(z, x_k)`` with
+``S(0, x_k) != 0``.  ``m`` counts the tuples ``a'`` with ``q(a', .) == 0``, so
+``N = S(0, x_k)`` is ``c`` times the product of ``-q(a', x_k)`` over the other
+tuples: a non-zero integer polynomial that vanishes at every root of
+``q(a, x_k)`` once ``p`` is known not to be nullified at ``a`` (checked first).
+This removes any degeneration of the plain norm ``R(0, x_k)`` (which is zero
+when some conjugate tuple nullifies ``q``).  The real roots of ``N`` are
+isolated exactly and each candidate ``r`` is kept iff ``sign_at(p, a + (r,))``
+is zero; when no algebraic coordinate occurs, ``N = -q`` and all are kept.
+"""
+from __future__ import annotations
+
+from math import lcm
+from typing import Sequence
+
+from flint import arb, ctx, fmpq, fmpz_mpoly, fmpz_mpoly_ctx, fmpz_poly
+
+from .algebraic import KernelError, RealAlgebraic, ball, real_roots, reduced, refine
+
+
+def _require_variables(p: fmpz_mpoly, count: int) -> None:
+    """Raise KernelError if p involves a variable x_i with i >= count."""
+    if any(d > 0 for d in p.degrees()[count:]):
+        raise KernelError(f"{p} involves a variable beyond x{count - 1}")
+
+
+def _substitute_rationals(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpz_mpoly:
+    """A positive integer multiple of p with every rational coordinate of `point` substituted."""
+    values = {i: a.low for i, a in enumerate(point) if a.is_rational()}
+    terms: dict[tuple, fmpq] = {}
+    for exps, c in p.terms():
+        value = fmpq(c)
+        for i, v in values.items():
+            value *= v ** exps[i]
+        key = tuple(0 if i in values else e for i, e in enumerate(exps))
+        terms[key] = terms.get(key, fmpq(0)) + value
+    den = lcm(*(int(v.q) for v in terms.values()))
+    return p.context().from_dict({e: v.p * (den // v.q) for e, v in terms.items() if v != 0})
+
+
+def _eliminate(q: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> tuple[fmpz_mpoly, int]:
+    """R = iterated resultant of z - q with the d_i of the coordinates that occur (module docstring), and the index of z."""
+    names = q.context().names()
+    z = len(names)
+    zctx = fmpz_mpoly_ctx.get(names + ("z",), "lex")
+    R = zctx.gen(z) - zctx.from_dict({e + (0,): c for e, c in q.terms()})
+    for i, a in enumerate(point):
+        if not a.is_rational() and R.degrees()[i] > 0:
+            d = {tuple(j if v == i else 0 for v in range(z + 1)): c for j, c in enumerate(a.poly.coeffs())}
+            R = R.resultant(zctx.from_dict(d), names[i])
+    if any(R.degrees()[:len(point)]):
+        raise KernelError(f"elimination left a coordinate in {R}")
+    return R, z
+
+
+def _root_gap(R: fmpz_mpoly, z: int) -> fmpq:
+    """0 if R(0) != 0; else |s_0| / (|s_0| + max_{j>=1} |s_j|) for R = z^m S(z): no non-zero root of R is smaller (Cauchy, reciprocal)."""
+    coeffs = {exps[z]: c for exps, c in R.terms()}
+    m = min(coeffs)
+    if m == 0:
+        return fmpq(0)
+    s0 = abs(coeffs[m])
+    return fmpq(s0, s0 + max((abs(c) for j, c in coeffs.items() if j > m), default=0))
+
+
+def _evaluate(q: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> arb:
+    """A ball containing q(point), in arb arithmetic over balls containing the coordinates' intervals."""
+    balls = [ball(a) for a in point]
+    total = arb(0)
+    for exps, c in q.terms():
+        term = arb(c)
+        for i, e in enumerate(exps):
+            if e:
+                term *= balls[i] ** e
+        total += term
+    return total
+
+
+def sign_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> int:
+    """The exact sign of p at `point` (interval filter, zero by the root-gap rule of DESIGN §5)."""
+    _require_variables(p, len(point))
+    point = [reduced(a) for a in point][: p.context().nvars()]
+    q = _substitute_rationals(p, point)
+    if q.is_constant():
+        return 0 if q.is_zero() else (1 if q.leading_coefficient() > 0 else -1)
+    gap, prec = None, 64
+    while True:
+        point = [refine(a, fmpq(1, 2 ** prec)) for a in point]
+        with ctx.workprec(prec):
+            value = _evaluate(q, point)
+            if value > 0:
+                return 1
+            if value < 0:
+                return -1
+            if gap is None:
+                gap = _root_gap(*_eliminate(q, point))
+            if abs(value) < arb(gap):
+                return 0
+        prec *= 2
+
+
+def _coefficients_in(p: fmpz_mpoly, k: int) -> list[fmpz_mpoly]:
+    """The coefficients of p as a polynomial in x_k (each free of x_k)."""
+    groups: dict[int, dict] = {}
+    for exps, c in p.terms():
+        groups.setdefault(exps[k], {})[exps[:k] + (0,) + exps[k + 1:]] = c
+    return [p.context().from_dict(terms) for terms in groups.values()]
+
+
+def is_nullified(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> bool:
+    """Whether every coefficient of p in x_k (k = len(point)) is zero at `point`."""
+    k = len(point)
+    if p.context().nvars() <= k:
+        raise KernelError(f"no variable x{k} in the context of {p}")
+    _require_variables(p, k + 1)
+    return all(sign_at(c, point) == 0 for c in _coefficients_in(p, k))
+
+
+def real_roots_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> list[RealAlgebraic]:
+    """The distinct real roots of p(point, x_k), k = len(point), increasing, each checked (module docstring)."""
+    k = len(point)
+    if is_nullified(p, point):
+        raise KernelError(f"{p} vanishes identically in x{k} at the point")
+    point = [reduced(a) for a in point]
+    q = _substitute_rationals(p, point)
+    R, z = _eliminate(q, point)
+    m = min(exps[z] for exps, _ in R.terms())
+    norm = [0] * (R.degrees()[k] + 1)
+    for exps, c in R.terms():
+        if exps[z] == m:
+            norm[exps[k]] = c
+    candidates = real_roots(fmpz_poly(norm))
+    if all(d == 0 for d in q.degrees()[:k]):
+        return candidates
+    return [r for r in candidates if sign_at(p, [*point, r]) == 0]

@@ -1,0 +1,470 @@
+"""The checker's exact kernel (checker/algebraic.py, checker/signs.py).
+
+Reference values come from sympy (an independent library: its own root
+isolation, resultants and radical arithmetic), from hand computation, or from
+common-practice facts; each check names its source beside it.
+"""
+from __future__ import annotations
+
+from fractions import Fraction
+
+import pytest
+import sympy
+from flint import arb, fmpq, fmpz_poly
+from hypothesis import HealthCheck, assume, given, settings
+from hypothesis import strategies as st
+
+from certformat.formula import poly_context
+from checker.algebraic import (
+    KernelError, RealAlgebraic, cauchy_bound, check_isolating, compare, count_roots,
+    enclosure, real_roots, reduced, refine, squarefree_part, sturm_sequence,
+)
+from checker.signs import _eliminate, is_nullified, real_roots_at, sign_at
+
+X = sympy.symbols("x0:3")
+Y = sympy.Symbol("y")
+CTX = poly_context(3)
+x0, x1, x2 = CTX.gens()
+
+
+def examples(n):
+    """Hypothesis settings with n examples and no deadline (sympy references are slow)."""
+    return settings(max_examples=n, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+
+
+# --------------------------------------------------------------------------
+# Helpers: one dictionary of terms, built as a flint and as a sympy polynomial.
+
+def ra(coeffs, low, high) -> RealAlgebraic:
+    """A RealAlgebraic from integer coefficients (constant first) and rational bounds."""
+    return RealAlgebraic(fmpz_poly(coeffs), fmpq(*Fraction(low).as_integer_ratio()),
+                         fmpq(*Fraction(high).as_integer_ratio()))
+
+
+# The algebraic numbers used as coordinates, with their sympy values.
+SQRT2 = (ra([-2, 0, 1], 1, 2), sympy.sqrt(2))
+MINUS_SQRT2 = (ra([-2, 0, 1], -2, -1), -sympy.sqrt(2))
+CBRT3 = (ra([-3, 0, 0, 1], 1, 2), sympy.cbrt(3))
+PHI = (ra([-1, -1, 1], 1, 2), (1 + sympy.sqrt(5)) / 2)          # golden ratio: x^2 - x - 1 (common-practice fact)
+# Non-minimal definitions of the same numbers: (x^2-2)^2 (x+1) and 2x^3 - 6 (x^3 - 3 times 2).
+SQRT2_SQUARED_DEF = (RealAlgebraic(fmpz_poly([-2, 0, 1]) ** 2 * fmpz_poly([1, 1]), fmpq(1), fmpq(3, 2)), sympy.sqrt(2))
+CBRT3_SCALED_DEF = (ra([-6, 0, 0, 2], 0, 5), sympy.cbrt(3))
+HALF = (RealAlgebraic.rational(Fraction(1, 2)), sympy.Rational(1, 2))
+MINUS_THREE = (RealAlgebraic.rational(-3), sympy.Integer(-3))
+TWO_AS_ROOT = (ra([-4, 0, 1], 1, 3), sympy.Integer(2))           # 2 given as the root of x^2 - 4 in (1, 3)
+COORDS = [SQRT2, MINUS_SQRT2, CBRT3, PHI, SQRT2_SQUARED_DEF, CBRT3_SCALED_DEF, HALF, MINUS_THREE, TWO_AS_ROOT]
+RADICAL = [SQRT2, MINUS_SQRT2, CBRT3, PHI, SQRT2_SQUARED_DEF, CBRT3_SCALED_DEF]
+
+
+def terms_strategy(nvars, max_deg, max_terms=6, coeff=5):
+    """Random polynomials as {exponent tuple: non-zero small integer}."""
+    exps = st.tuples(*[st.integers(0, max_deg)] * nvars)
+    return st.dictionaries(exps, st.integers(-coeff, coeff).filter(bool), min_size=1, max_size=max_terms)
+
+
+def to_flint(terms: dict) -> object:
+    return CTX.from_dict({tuple(e) + (0,) * (3 - len(e)): c for e, c in terms.items()})
+
+
+def to_sympy(terms: dict) -> sympy.Expr:
+    return sympy.Add(*[c * sympy.Mul(*[X[i] ** k for i, k in enumerate(e)]) for e, c in terms.items()])
+
+
+def sympy_sign(value: sympy.Expr) -> int:
+    """Exact zero by sympy's radical arithmetic (expand is canonical in a basis of the field), else sign at 60 digits."""
+    value = sympy.expand(value)
+    if value == 0:
+        return 0
+    approx = sympy.N(value, 60)
+    assert abs(approx) > sympy.Float("1e-40")    # a non-zero algebraic value of small height is far from 0
+    return 1 if approx > 0 else -1
+
+
+def contains(a: RealAlgebraic, value: sympy.Expr) -> bool:
+    """Whether the 50-digit sympy value lies in a's interval refined to width 2^-150 (with 1e-40 slack)."""
+    r = refine(a, fmpq(1, 2 ** 150))
+    v = sympy.Rational(str(sympy.N(value, 50)))
+    slack = sympy.Rational(1, 10 ** 40)
+    return sympy.Rational(str(r.low)) - slack <= v <= sympy.Rational(str(r.high)) + slack
+
+
+# --------------------------------------------------------------------------
+# Worked examples.
+
+def test_sturm_sequence_worked_example():
+    # worked by hand (long division) and identical to sympy.sturm(x**3 - x): x^3-x, 3x^2-1, 2x/3, 1
+    seq = sturm_sequence(squarefree_part(fmpz_poly([0, -1, 0, 1])))
+    assert [list(map(Fraction, map(str, s.coeffs()))) for s in seq] == [
+        [0, -1, 0, 1], [-1, 0, 3], [0, Fraction(2, 3)], [1]]
+    # roots -1, 0, 1 (x^3 - x = x(x-1)(x+1), common-practice fact)
+    assert count_roots(seq, fmpq(-2), fmpq(2)) == 3
+    assert count_roots(seq, fmpq(-1, 2), fmpq(1, 2)) == 1
+    assert count_roots(seq, fmpq(1, 2), fmpq(3, 4)) == 0
+
+
+def test_cauchy_bound_worked_example():
+    # Cauchy's bound 1 + max|a_i/a_n| computed by hand: 2x^2 - 6x + 1 -> 1 + 6/2 = 4
+    assert cauchy_bound(fmpz_poly([1, -6, 2])) == 4
+
+
+def test_sqrt2_against_convergent():
+    # arithmetic: 99^2 = 9801 > 2*70^2 = 9800, so 99/70 > sqrt 2; 41^2 = 1681 < 2*29^2 = 1682
+    s2 = SQRT2[0]
+    assert sign_at(70 * x0 - 99, [s2]) == -1
+    assert sign_at(29 * x0 - 41, [s2]) == 1
+    assert compare(s2, RealAlgebraic.rational(Fraction(99, 70))) == -1
+    assert compare(s2, RealAlgebraic.rational(Fraction(41, 29))) == 1
+
+
+def test_tiny_nonzero_values_are_not_called_zero():
+    """Values far below the first filter precision: the root-gap rule must not decide zero."""
+    # convergents P/Q of sqrt 2 (P + Q sqrt2 = (1 + sqrt2)^n) satisfy P^2 - 2Q^2 = ±1 (Pell, common-practice
+    # fact); Q sqrt2 - P = (2Q^2 - P^2) / (Q sqrt2 + P), so its sign is that of the integer 2Q^2 - P^2
+    P, Q = 1, 1
+    for _ in range(120):
+        P, Q = P + 2 * Q, P + Q
+        assert sign_at(Q * x0 - P, [SQRT2[0]]) == (1 if 2 * Q * Q > P * P else -1)   # exact integers
+    # a rational P/Q within 2^-300 of sqrt2 * cbrt3: the sign of xy - P/Q is that of 72 Q^6 - P^6
+    Q = 2 ** 300
+    P = int(sympy.floor(sympy.sqrt(2) * sympy.cbrt(3) * Q))          # sympy as reference library
+    for p_ in (P, P + 1):
+        expected = 1 if 72 * Q ** 6 > p_ ** 6 else -1                  # exact integers
+        assert sign_at(Q * x0 * x1 - p_, [SQRT2[0], CBRT3[0]]) == expected
+
+
+@pytest.mark.parametrize("a,b,c", [(1, 0, -1), (1, 2, 1), (1, 0, 1), (3, -7, 2), (2, 2, 5), (4, -4, 1)])
+def test_quadratic_roots_follow_discriminant(a, b, c):
+    # common-practice fact: a x^2 + b x + c has 2, 1, 0 distinct real roots as b^2 - 4ac is >, =, < 0
+    disc = b * b - 4 * a * c
+    assert sympy.discriminant(a * Y ** 2 + b * Y + c, Y) == disc     # sympy as reference library
+    expected = 2 if disc > 0 else 1 if disc == 0 else 0
+    assert len(real_roots(fmpz_poly([c, b, a]))) == expected
+    assert len(real_roots_at(a * x1 ** 2 + b * x1 + c, [RealAlgebraic.rational(7)])) == expected
+
+
+def test_golden_ratio_and_its_conjugate():
+    # common-practice fact: x^2 - x - 1 has roots (1 ± sqrt 5)/2; phi^2 = phi + 1; phi * (1 - phi) = -1
+    low, high = real_roots(fmpz_poly([-1, -1, 1]))
+    assert compare(high, PHI[0]) == 0
+    assert sign_at(x0 ** 2 - x0 - 1, [PHI[0]]) == 0
+    assert sign_at(x0 * x1 + 1, [high, low]) == 0
+
+
+def test_exact_zero_at_sqrt2_cbrt3():
+    # by construction: (x^2 - 2) r + (y^3 - 3) s vanishes at (sqrt 2, cbrt 3)
+    p = (x0 ** 2 - 2) * (x0 * x1 + 3 * x1 ** 2 - 1) + (x1 ** 3 - 3) * (x0 ** 3 - x1 + 7)
+    point = [SQRT2[0], CBRT3[0]]
+    assert sign_at(p, point) == 0
+    assert sign_at(p + 1, point) == 1 and sign_at(p - 1, point) == -1
+    # (sqrt 2)^6 = 8 and (cbrt 3)^6 = 9 (common-practice fact), so x^6 - y^6 + 1 = 0 there
+    assert sign_at(x0 ** 6 - x1 ** 6 + 1, point) == 0
+    # (x - y)^2 at (sqrt 2, sqrt 2) given by two different definitions
+    assert sign_at((x0 - x1) ** 2, [SQRT2[0], SQRT2_SQUARED_DEF[0]]) == 0
+
+
+def test_exact_zero_in_three_algebraic_coordinates():
+    # by construction: x*y*z - sqrt2*cbrt3*phi written through the defining relations
+    point = [SQRT2[0], CBRT3[0], PHI[0]]
+    p = (x0 * x1 * x2) ** 6 - 8 * 9 * (x2 ** 2) ** 3     # (xyz)^6 = 8*9*phi^6
+    assert sign_at(p, point) == 0
+    # phi^6 = 8 phi + 5 (Fibonacci identity phi^n = F(n) phi + F(n-1), common-practice fact)
+    assert sign_at(x2 ** 6 - 8 * x2 - 5, point) == 0
+    assert sign_at(x2 ** 6 - 8 * x2 - 5 + x0 * x1 - x1 * x0, point) == 0
+
+
+def test_roots_over_sqrt2_worked_example():
+    # by construction: at x = sqrt 2, (y^2 - x)(y - x - 1)(y + 5) has roots -5, ±2^(1/4), 1 + sqrt 2
+    p = (x1 ** 2 - x0) * (x1 - x0 - 1) * (x1 + 5)
+    roots = real_roots_at(p, [SQRT2[0]])
+    expected = [-5, -sympy.root(2, 4), sympy.root(2, 4), 1 + sympy.sqrt(2)]
+    assert len(roots) == 4
+    assert all(contains(r, e) for r, e in zip(roots, expected))
+    assert roots[0].is_rational() and roots[0].low == -5
+
+
+def test_roots_over_two_algebraic_coordinates():
+    # sympy as reference library: real roots over Q(sqrt 2, cbrt 3)
+    p = x2 ** 3 - x0 * x1 * x2 + 1
+    expected = sympy.real_roots(sympy.Poly(Y ** 3 - sympy.sqrt(2) * sympy.cbrt(3) * Y + 1, Y, extension=True))
+    roots = real_roots_at(p, [SQRT2[0], CBRT3[0]])
+    assert len(roots) == len(expected) == 3
+    assert all(contains(r, e) for r, e in zip(roots, expected))
+    # by construction: z^2 = sqrt2 * cbrt3 has roots ±(sqrt2 cbrt3)^(1/2)
+    roots = real_roots_at(x2 ** 2 - x0 * x1, [SQRT2[0], CBRT3[0]])
+    value = sympy.sqrt(sympy.sqrt(2) * sympy.cbrt(3))
+    assert len(roots) == 2 and contains(roots[0], -value) and contains(roots[1], value)
+    assert sign_at(x2 ** 4 - 2 * x1 ** 2, [SQRT2[0], CBRT3[0], roots[1]]) == 0   # z^4 = 2 cbrt3^2
+
+
+def test_degenerate_norm_is_handled():
+    # at (sqrt 2, -sqrt 2) the conjugate tuple (sqrt 2, sqrt 2) nullifies (x0 - x1) x2,
+    # so the plain norm is identically zero; the root is x2 = 0 (by inspection: 2 sqrt2 x2 = 0)
+    point = [SQRT2[0], MINUS_SQRT2[0]]
+    assert not is_nullified((x0 - x1) * x2, point)
+    roots = real_roots_at((x0 - x1) * x2, point)
+    assert len(roots) == 1 and roots[0].is_rational() and roots[0].low == 0
+    # (x0 - x1)(x2^2 - x0): roots ±2^(1/4) (by inspection)
+    roots = real_roots_at((x0 - x1) * (x2 ** 2 - x0), point)
+    assert len(roots) == 2 and contains(roots[1], sympy.root(2, 4))
+
+
+def test_nullified():
+    # by construction: every coefficient in x1 is a multiple of x0^2 - 2
+    p = (x0 ** 2 - 2) * (x1 ** 3 + x0 * x1 - 4)
+    assert is_nullified(p, [SQRT2[0]])
+    assert not is_nullified(p, [CBRT3[0]])
+    with pytest.raises(KernelError):
+        real_roots_at(p, [SQRT2[0]])
+    with pytest.raises(KernelError):
+        real_roots_at(x0 - x1 + x1, [RealAlgebraic.rational(0)])
+
+
+def test_variable_discipline():
+    with pytest.raises(KernelError):
+        sign_at(x0 + x1, [SQRT2[0]])                  # involves x1 with only x0 given
+    with pytest.raises(KernelError):
+        real_roots_at(x0 + x1 * x2, [SQRT2[0]])        # involves x2 beyond x_k = x1
+    assert real_roots_at(x0 - 1, [SQRT2[0]]) == []     # free of x1, non-zero there: no roots
+
+
+def test_enclosure_is_rigorous_and_tight():
+    from flint import ctx
+    for prec in (10, 53, 100, 300):
+        b = enclosure(SQRT2_SQUARED_DEF[0], prec)
+        assert b.rad() < arb(2) ** (-prec + 1)
+        with ctx.workprec(prec + 64):
+            assert b.overlaps(arb(2).sqrt())     # python-flint's own arb square root as reference
+        r = refine(SQRT2_SQUARED_DEF[0], fmpq(1, 2 ** prec))
+        assert r.low ** 2 < 2 < r.high ** 2      # exact: low < sqrt 2 < high
+    assert enclosure(HALF[0], 20).contains(arb(0.5))
+
+
+# --------------------------------------------------------------------------
+# Adversarial: check_isolating rejects every malformed claim.
+
+@pytest.mark.parametrize("number,why", [
+    (ra([-2, 0, 1], -2, 2), "two roots"),
+    (ra([-2, 0, 1], 2, 3), "no root"),
+    (ra([-4, 0, 1], 2, 3), "root at the lower end"),
+    (ra([-4, 0, 1], 1, 2), "root at the upper end"),
+    (ra([-2, 0, 1], 2, 1), "low > high"),
+    (ra([5], 1, 2), "degree 0"),
+    (ra([0], 1, 2), "zero polynomial"),
+    (ra([-2, 0, 1], Fraction(3, 2), Fraction(3, 2)), "rational that is not a root"),
+    (RealAlgebraic(fmpz_poly([-2, 0, 1]) ** 2, fmpq(-2), fmpq(2)), "two double roots"),
+    (RealAlgebraic(fmpz_poly([-2, 0, 1]) ** 2, fmpq(2), fmpq(3)), "squared, no root"),
+])
+def test_check_isolating_rejects(number, why):
+    with pytest.raises(KernelError):
+        check_isolating(number)
+    with pytest.raises(KernelError):
+        sign_at(x0, [number])
+
+
+def test_check_isolating_accepts():
+    for number, _ in COORDS:
+        check_isolating(number)
+    check_isolating(RealAlgebraic(fmpz_poly([-2, 0, 1]) ** 3, fmpq(-2), fmpq(0)))   # triple root -sqrt 2
+
+
+def test_constructor_types():
+    with pytest.raises(TypeError):
+        RealAlgebraic(fmpz_poly([1, 1]), 0, 1)
+    assert RealAlgebraic.rational(Fraction(-3, 4)) == RealAlgebraic(fmpz_poly([3, 4]), fmpq(-3, 4), fmpq(-3, 4))
+    assert RealAlgebraic.rational(5).poly == fmpz_poly([-5, 1])
+
+
+# --------------------------------------------------------------------------
+# Property tests against sympy.
+
+small_factor = st.lists(st.integers(-6, 6), min_size=2, max_size=4).filter(lambda c: c[-1] != 0)
+
+
+@examples(250)
+@given(terms_strategy(3, 3, 6, 9), st.lists(st.fractions(-5, 5, max_denominator=7), min_size=3, max_size=3))
+def test_sign_at_rational_points_matches_fractions(terms, values):
+    """Rational points: exact evaluation with Python's fractions module as reference."""
+    value = sum(c * values[0] ** e[0] * values[1] ** e[1] * values[2] ** e[2] for e, c in terms.items())
+    point = [RealAlgebraic.rational(v) for v in values]
+    assert sign_at(to_flint(terms), point) == (value > 0) - (value < 0)
+
+
+@examples(200)
+@given(st.lists(st.tuples(small_factor, st.integers(1, 3)), min_size=1, max_size=3))
+def test_real_roots_match_sympy(factors):
+    """Distinct real roots, in order, of products of random factors with multiplicities."""
+    f = fmpz_poly([1])
+    for coeffs, mult in factors:
+        f *= fmpz_poly(coeffs) ** mult
+    expected = sorted(set(sympy.real_roots(sympy.Poly(list(reversed(f.coeffs())), Y))),
+                      key=lambda r: sympy.N(r, 50))                               # sympy as reference library
+    ours = real_roots(f)
+    assert len(ours) == len(expected)
+    for r, e in zip(ours, expected):
+        check_isolating(r)
+        assert contains(r, e)
+        if e.is_Rational:
+            assert r.is_rational() and Fraction(str(r.low)) == Fraction(int(e.p), int(e.q))
+    for a, b in zip(ours, ours[1:]):
+        assert compare(a, b) == -1 and compare(b, a) == 1 and compare(a, a) == 0
+
+
+@examples(150)
+@given(st.lists(st.integers(-9, 9), min_size=2, max_size=7).filter(lambda c: c[-1] != 0),
+       st.fractions(-10, 10, max_denominator=8), st.fractions(-10, 10, max_denominator=8))
+def test_sturm_count_matches_sympy(coeffs, a, b):
+    p = sympy.Poly(list(reversed(coeffs)), Y)
+    assume(a < b and p.eval(a) != 0 and p.eval(b) != 0)
+    s = squarefree_part(fmpz_poly(coeffs))
+    n = count_roots(sturm_sequence(s), fmpq(a.numerator, a.denominator), fmpq(b.numerator, b.denominator))
+    assert n == p.count_roots(a, b)                                           # sympy as reference library
+
+
+@examples(250)
+@given(st.lists(st.integers(-9, 9), min_size=2, max_size=6).filter(lambda c: c[-1] != 0))
+def test_sturm_sequence_matches_sympy(coeffs):
+    as_sympy = lambda f: sympy.Poly([sympy.Rational(str(c)) for c in reversed(f.coeffs())], Y)
+    part = as_sympy(squarefree_part(fmpz_poly(coeffs)))
+    reference = sympy.sqf_part(sympy.Poly(list(reversed(coeffs)), Y))         # sympy as reference library
+    assert sympy.expand(part.as_expr() - part.LC() / reference.LC() * reference.as_expr()) == 0
+    monic = squarefree_part(fmpz_poly(coeffs))
+    monic = monic / monic.leading_coefficient()
+    ours = [as_sympy(s) for s in sturm_sequence(monic)]
+    theirs = sympy.sturm(part)                           # sympy as reference library (it makes p monic)
+    assert len(ours) == len(theirs)
+    for o, t in zip(ours, theirs):   # equal up to a positive factor
+        ratio = o.LC() / t.LC()
+        assert ratio > 0 and sympy.expand(o.as_expr() - ratio * t.as_expr()) == 0
+
+
+@examples(350)
+@given(terms_strategy(2, 3), st.sampled_from(COORDS), st.sampled_from(COORDS))
+def test_sign_at_matches_sympy(terms, c0, c1):
+    p = to_flint(terms)
+    value = to_sympy(terms).subs({X[0]: c0[1], X[1]: c1[1]})
+    assert sign_at(p, [c0[0], c1[0]]) == sympy_sign(value)                   # sympy as reference library
+
+
+@examples(150)
+@given(terms_strategy(2, 2, 4, 3), terms_strategy(2, 2, 4, 3), st.integers(-2, 2),
+       st.sampled_from(RADICAL), st.sampled_from(RADICAL))
+def test_sign_at_constructed_zeros(r, s, shift, c0, c1):
+    """p = d0(x0) r + d1(x1) s + shift, d_i the minimal polynomial of coordinate i: its value is shift."""
+    d0, d1 = (sympy.minimal_polynomial(c[1], Y) for c in (c0, c1))           # sympy as reference library
+    poly = lambda d, x: sum(int(d.coeff(Y, j)) * x ** j for j in range(sympy.degree(d, Y) + 1))
+    p = poly(d0, x0) * to_flint(r) + poly(d1, x1) * to_flint(s) + shift
+    assert sign_at(p, [c0[0], c1[0]]) == (shift > 0) - (shift < 0)             # by construction
+
+
+@examples(150)
+@given(terms_strategy(3, 2, 5, 4), st.sampled_from(COORDS), st.sampled_from(RADICAL), st.sampled_from(RADICAL))
+def test_sign_at_three_coordinates_matches_sympy(terms, c0, c1, c2):
+    p = to_flint(terms)
+    value = to_sympy(terms).subs({X[0]: c0[1], X[1]: c1[1], X[2]: c2[1]})
+    assert sign_at(p, [c0[0], c1[0], c2[0]]) == sympy_sign(value)            # sympy as reference library
+
+
+@examples(120)
+@given(terms_strategy(2, 2, 4, 3), terms_strategy(2, 2, 4, 3), st.sampled_from(RADICAL), st.sampled_from(RADICAL))
+def test_sign_of_squares_and_differences(u, v, c0, c1):
+    """(u - v)^2 with u, v equal at the point by construction (the defining relation of coordinate 0 added)."""
+    d0 = sympy.minimal_polynomial(c0[1], Y)                                    # sympy as reference library
+    d0 = sum(int(d0.coeff(Y, j)) * x0 ** j for j in range(sympy.degree(d0, Y) + 1))
+    U, V = to_flint(u), to_flint(v)
+    point = [c0[0], c1[0]]
+    assert sign_at((U - (U + d0 * V)) ** 2, point) == 0                       # by construction
+    expected = sympy_sign(((to_sympy(u) - to_sympy(v)) ** 2).subs({X[0]: c0[1], X[1]: c1[1]}))
+    assert sign_at((U - V) ** 2, point) == expected                           # sympy as reference library
+
+
+@examples(50)
+@given(terms_strategy(2, 3, 6, 4), st.sampled_from([SQRT2, MINUS_SQRT2, SQRT2_SQUARED_DEF, PHI]))
+def test_roots_over_quadratic_irrational_match_sympy(terms, coord):
+    """Roots of p(a, y), a = s + t sqrt(c): reference from sympy's real roots of A^2 - c B^2 in Q[y],
+    where p(a, y) = A(y) + sqrt(c) B(y); a real root of the norm is a root of p(a, y) iff
+    A and B have opposite signs there or both vanish (since A = ±sqrt(c) B)."""
+    p = to_flint(terms)
+    assume(not is_nullified(p, [coord[0]]))
+    e = sympy.expand(to_sympy(terms).subs({X[0]: coord[1], X[1]: Y}))
+    c = 2 if coord[1].has(sympy.sqrt(2)) else 5
+    A = sympy.Poly(e.subs(sympy.sqrt(c), 0), Y)
+    B = sympy.Poly(sympy.expand((e - A.as_expr()) / sympy.sqrt(c)), Y)
+    norm = A ** 2 - c * B ** 2
+    expected = []
+    for rho in sorted(set(sympy.real_roots(sympy.sqf_part(norm))), key=lambda r: sympy.N(r, 50)):
+        sa, sb = (sympy_sign_at_root(P, rho) for P in (A, B))
+        if sa == -sb:
+            expected.append(rho)                                               # sympy as reference library
+    ours = real_roots_at(p, [coord[0]])
+    assert len(ours) == len(expected)
+    assert all(contains(r, e) for r, e in zip(ours, expected))
+
+
+def sympy_sign_at_root(P: sympy.Poly, rho) -> int:
+    """Sign of the rational polynomial P at a sympy real root: zero iff the minimal polynomial divides P."""
+    if P.is_zero:
+        return 0
+    m = sympy.Poly(sympy.minimal_polynomial(rho, Y), Y)
+    if P.rem(m).is_zero:
+        return 0
+    return 1 if sympy.N(P.as_expr().subs(Y, rho), 50) > 0 else -1
+
+
+@examples(20)
+@given(terms_strategy(2, 2, 5, 3), st.sampled_from([CBRT3, PHI, MINUS_SQRT2]))
+def test_roots_over_algebraic_match_sympy_extension(terms, coord):
+    """Roots of p(a, y) against sympy's real roots over the algebraic field Q(a)."""
+    p = to_flint(terms)
+    e = sympy.expand(to_sympy(terms).subs({X[0]: coord[1], X[1]: Y}))
+    assume(e.has(Y))
+    P = sympy.Poly(e, Y, extension=True)
+    expected = sympy.real_roots(P.sqf_part())                                   # sympy as reference library
+    ours = real_roots_at(p, [coord[0]])
+    assert len(ours) == len(expected)
+    assert all(contains(r, e) for r, e in zip(ours, expected))
+
+
+@examples(60)
+@given(terms_strategy(1, 4, 5, 6), st.sampled_from(RADICAL), st.sampled_from(COORDS))
+def test_compare_matches_sympy(terms, c0, c1):
+    """Compare a root of a random polynomial with the coordinates."""
+    f = fmpz_poly([terms.get((j,), 0) for j in range(5)])
+    assume(f.degree() >= 1)
+    for r in real_roots(f):
+        for c in (c0, c1):
+            # equal iff f(c) = 0 exactly (sympy radical arithmetic) and c is in r's interval; else the
+            # sign of the difference at 60 digits (sympy as reference library)
+            f_at_c = sympy.expand(sum(int(a) * c[1] ** j for j, a in enumerate(f.coeffs())))
+            if f_at_c == 0 and contains(r, c[1]):
+                expected = 0
+            else:
+                expected = 1 if sympy.N(r_value(f, r) - c[1], 60) > 0 else -1
+            assert compare(r, c[0]) == expected
+            assert compare(c[0], r) == -expected
+
+
+def r_value(f: fmpz_poly, r: RealAlgebraic) -> sympy.Expr:
+    """The sympy real root of f in r's interval (sympy as reference library)."""
+    for root in sympy.real_roots(sympy.Poly(list(reversed([int(c) for c in f.coeffs()])), Y)):
+        if contains(r, root):
+            return root
+    raise AssertionError("no sympy root in the interval")
+
+
+@examples(100)
+@given(terms_strategy(2, 2, 4, 4), st.sampled_from(RADICAL), st.sampled_from(RADICAL))
+def test_elimination_matches_sympy_resultant(terms, c0, c1):
+    """R(z) = Res_x1(Res_x0(z - q, d0), d1) equals sympy's iterated resultant up to sign."""
+    q = to_flint(terms)
+    a0, a1 = reduced(c0[0]), reduced(c1[0])
+    R, z = _eliminate(q, [a0, a1])
+    Z = sympy.Symbol("z")
+    d0 = sum(int(c) * X[0] ** j for j, c in enumerate(a0.poly.coeffs()))
+    d1 = sum(int(c) * X[1] ** j for j, c in enumerate(a1.poly.coeffs()))
+    expected = Z - to_sympy(terms)
+    for var, d in ((X[0], d0), (X[1], d1)):
+        if sympy.Poly(expected, var).degree() > 0:
+            expected = sympy.resultant(expected, d, var)                         # sympy as reference library
+    ours = sympy.Add(*[int(c) * Z ** e[z] * sympy.Mul(*[X[i] ** k for i, k in enumerate(e[:3])])
+                       for e, c in R.terms()])
+    assert sympy.expand(ours - expected) == 0 or sympy.expand(ours + expected) == 0
