@@ -36,6 +36,8 @@ class TheoryAnswer:
 class SearchResult:
     answer: str                     # 'sat', 'unsat' or 'unknown'
     model: object = None
+    assignment: list[int] = field(default_factory=list)
+    """For sat: the value (+1/-1) of every propositional variable, index 0 unused."""
     reason: str = ""
     lemmas: list[tuple[tuple[int, ...], object]] = field(default_factory=list)
     """(conflict literals, evidence) of each lemma the refutation needs."""
@@ -237,6 +239,7 @@ def search(start: list[Clause], owners: list[int | None], atom_count: int, nvars
         answer = theory(assigned)
         if answer.kind == "sat":
             result.answer, result.model = "sat", answer.model
+            result.assignment = list(solver.value)
             return result
         if answer.kind != "conflict":
             result.reason = answer.reason
