@@ -8,7 +8,6 @@ vanishes at (sqrt 2, cbrt 3)); each check names its source beside it.
 """
 from __future__ import annotations
 
-import random
 from fractions import Fraction
 
 import pytest
