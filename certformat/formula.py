@@ -234,6 +234,18 @@ def atoms_of(f: Formula):
             stack.extend((g.right, g.left))
 
 
+def formula_depth(f: Formula) -> int:
+    """Nesting depth of the Boolean structure (an atom or constant has depth 1)."""
+    deepest, stack = 0, [(f, 1)]
+    while stack:
+        g, d = stack.pop()
+        deepest = max(deepest, d)
+        kids = (g.arg,) if isinstance(g, Not) else g.args if isinstance(g, (And, Or)) else \
+            (g.left, g.right) if isinstance(g, Iff) else ()
+        stack.extend((k, d + 1) for k in kids)
+    return deepest
+
+
 def formula_size(f: Formula) -> int:
     """Number of nodes of the Boolean structure."""
     n, stack = 0, [f]

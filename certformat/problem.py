@@ -10,10 +10,14 @@ import hashlib
 from pathlib import Path
 
 from .errors import InputError
-from .formula import Problem
+from .formula import Problem, formula_depth
 from .native import parse_native
 from .smtlib import parse_smtlib
 from .terms import MAX_FILE_BYTES
+
+
+MAX_FORMULA_DEPTH = 200
+"""Deepest Boolean structure accepted; keeps every recursive walk of a formula bounded."""
 
 
 def load_problem(path) -> Problem:
@@ -47,8 +51,14 @@ def parse_problem_text(text: str, path: str = "<input>", sha256: str | None = No
         sha256 = hashlib.sha256(text.encode("utf-8")).hexdigest()
     suffix = Path(path).suffix.lower()
     if suffix == ".smt2" or (suffix != ".tess" and text.lstrip()[:1] in ("(", ";")):
-        return parse_smtlib(text, path, sha256)
-    return parse_native(text, path, sha256)
+        problem = parse_smtlib(text, path, sha256)
+    else:
+        problem = parse_native(text, path, sha256)
+    for a in problem.assertions:
+        if formula_depth(a.formula) > MAX_FORMULA_DEPTH:
+            raise InputError(f"Boolean structure nested deeper than {MAX_FORMULA_DEPTH} levels "
+                             "(after flattening and/or)", path, a.line, 1, "nesting")
+    return problem
 
 
 def _at_byte(data: bytes, offset: int, message: str, path: str) -> InputError:

@@ -35,6 +35,9 @@ CASES = [
     ("nesting beyond the limit", "p.smt2",
      DECL.encode() + b"(assert (> " + b"(- " * (MAX_NESTING + 1) + b"x"
      + b")" * (MAX_NESTING + 1) + b" 0))\n", "nested deeper"),
+    ("Boolean nesting beyond the limit", "p.smt2",
+     DECL.encode() + b"(assert " + b"(not (and (> x 0) " * 101 + b"(> x 1)" + b"))" * 101
+     + b")\n", "Boolean structure nested deeper"),
     ("declare-fun with arguments", "p.smt2", b"(declare-fun f (Real) Real)\n",
      "functions with arguments"),
     ("redeclaration", "p.smt2", DECL.encode() + DECL.encode(), "already declared"),
