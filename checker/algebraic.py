@@ -22,8 +22,12 @@ Algorithms, each with the theorem it rests on:
   roots and nowhere else; with exactly one root in ``(low, high)`` the sign at
   the midpoint tells which half holds it (intermediate value theorem).
 * **Isolation** -- all real roots lie in ``(-B, B)`` with Cauchy's bound
-  ``B = 1 + max_i |a_i / a_n|`` (Cauchy 1829); split by Sturm counts until each
-  interval holds one root.
+  ``B = 1 + max_i |a_i / a_n|`` (Cauchy 1829).  Candidate intervals come from
+  Arb's complex root enclosures (a hint only); they are accepted when Sturm
+  counts show exactly one root in each, the intervals are disjoint, and their
+  number equals the Sturm count on ``(-B, B)`` -- then they hold every real
+  root.  Otherwise ``(-B, B)`` is split by Sturm counts until each interval
+  holds one root.
 * **Equality** -- two irreducible primitive polynomials with a common root are
   equal up to sign (the minimal polynomial is unique), so two numbers are equal
   iff their minimal forms share the polynomial and a root in the intersection
@@ -31,7 +35,7 @@ Algorithms, each with the theorem it rests on:
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from fractions import Fraction
 from functools import cmp_to_key
 
@@ -62,6 +66,8 @@ class RealAlgebraic:
     poly: fmpz_poly
     low: fmpq
     high: fmpq
+    minimal: bool = field(default=False, compare=False)
+    """Set only by :func:`reduced` and :func:`isolate`: already checked, with an irreducible poly."""
 
     def __post_init__(self):
         if not (isinstance(self.poly, fmpz_poly) and isinstance(self.low, fmpq)
@@ -142,6 +148,8 @@ def check_isolating(a: RealAlgebraic) -> None:
 
 def reduced(a: RealAlgebraic) -> RealAlgebraic:
     """`a` checked and redefined by the irreducible factor that vanishes at it (a rational if that factor is linear)."""
+    if a.minimal:
+        return a
     check_isolating(a)
     if a.is_rational():
         return a
@@ -149,7 +157,7 @@ def reduced(a: RealAlgebraic) -> RealAlgebraic:
         if count_roots(sturm_sequence(fmpq_poly(g)), a.low, a.high) == 1:
             if g.degree() == 1:
                 return RealAlgebraic.rational(fmpq(-g[0], g[1]))
-            return RealAlgebraic(g, a.low, a.high)
+            return RealAlgebraic(g, a.low, a.high, minimal=True)
     raise KernelError(f"no factor of {a.poly} has its root in ({a.low}, {a.high})")
 
 
@@ -162,8 +170,8 @@ def _halve(a: RealAlgebraic) -> RealAlgebraic:
     if at_mid == 0:
         return RealAlgebraic.rational(mid)
     if at_mid == _sign(a.poly(a.low)):
-        return RealAlgebraic(a.poly, mid, a.high)
-    return RealAlgebraic(a.poly, a.low, mid)
+        return RealAlgebraic(a.poly, mid, a.high, a.minimal)
+    return RealAlgebraic(a.poly, a.low, mid, a.minimal)
 
 
 def refine(a: RealAlgebraic, width: fmpq) -> RealAlgebraic:
@@ -213,19 +221,39 @@ def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:
 
 
 def isolate(g: fmpz_poly) -> list[RealAlgebraic]:
-    """Isolating intervals for the real roots of g, irreducible of degree >= 2: Sturm bisection of (-B, B), B Cauchy's bound."""
+    """Isolating intervals for the real roots of g, irreducible of degree >= 2 (module docstring: Isolation)."""
     seq = sturm_sequence(fmpq_poly(g))
     bound = cauchy_bound(g)
+    total = count_roots(seq, -bound, bound)
+    hinted = sorted(_hinted_intervals(g, seq, bound))
+    if len(hinted) == total and all(h <= l for (_, h), (l, _) in zip(hinted, hinted[1:])):
+        return [RealAlgebraic(g, low, high, minimal=True) for low, high in hinted]
     pending, found = [(-bound, bound)], []
     while pending:
         low, high = pending.pop()
         n = count_roots(seq, low, high)
         if n == 1:
-            found.append(RealAlgebraic(g, low, high))
+            found.append(RealAlgebraic(g, low, high, minimal=True))
         elif n > 1:
             mid = (low + high) / 2
             pending += [(low, mid), (mid, high)]
     return found
+
+
+def _hinted_intervals(g: fmpz_poly, seq, bound: fmpq) -> list[tuple[fmpq, fmpq]]:
+    """Rational intervals around Arb's real root enclosures that Sturm confirms hold one root each."""
+    out = []
+    for z, _ in g.complex_roots():
+        if not z.imag == 0:
+            continue
+        mid, rad = z.real.mid().man_exp(), z.real.rad().man_exp()
+        centre = fmpq(mid[0]) * fmpq(2) ** int(mid[1])
+        radius = 2 * fmpq(rad[0]) * fmpq(2) ** int(rad[1]) + fmpq(1, 2 ** 64)
+        low, high = centre - radius, centre + radius
+        if -bound < low and high < bound and seq[0](low) != 0 and seq[0](high) != 0 \
+                and count_roots(seq, low, high) == 1:
+            out.append((low, high))
+    return out
 
 
 def real_roots(f: fmpz_poly) -> list[RealAlgebraic]:

@@ -18,7 +18,7 @@ from certformat.clauses import ClausalForm, clausal_form
 from certformat.formula import NEGATED, Problem, evaluate, relation_holds
 
 from . import polys as P
-from .algebraic import KernelError, RealAlgebraic, check_isolating
+from .algebraic import KernelError, RealAlgebraic, reduced
 from .cover import Replay, check_lemma
 from .limits import Limits, Rejection
 from .refutation import check_refutation
@@ -100,18 +100,17 @@ def require_size(cert: Certificate, limits: Limits) -> None:
 
 
 def checked_number(nid: str, num, cert: Certificate, limits: Limits) -> RealAlgebraic:
-    """Rule NUMBER: a rational, or a polynomial with exactly one root in an open interval."""
+    """Rule NUMBER: a rational, or a polynomial with exactly one root in an open interval
+    (kept in minimal form: defined by the irreducible factor that vanishes at it)."""
     limits.tick(num.line)
     low, high = fmpq(num.low.numerator, num.low.denominator), \
         fmpq(num.high.numerator, num.high.denominator)
     if num.poly is None:
         return RealAlgebraic.rational(low)
-    a = RealAlgebraic(fmpz_poly(list(num.poly)), low, high)
     try:
-        check_isolating(a)
+        return reduced(RealAlgebraic(fmpz_poly(list(num.poly)), low, high))
     except KernelError as err:
         raise Rejection("NUMBER", f"{nid}: {err}", num.line) from None
-    return a
 
 
 def atom_literals(problem: Problem, cert: Certificate, cf: ClausalForm, order: list[int],

@@ -7,7 +7,9 @@ last variable).  "Level" of a polynomial is 1 + the index of its last variable
 """
 from __future__ import annotations
 
-from flint import fmpz_mpoly
+from math import lcm
+
+from flint import fmpq_mpoly, fmpz_mpoly
 
 from certformat.formula import poly_context
 
@@ -46,11 +48,22 @@ def normalized(f: fmpz_mpoly) -> fmpz_mpoly:
 
 
 def irreducible_factors(f: fmpz_mpoly) -> list[fmpz_mpoly]:
-    """The distinct non-constant irreducible factors of ``f``, normalized (flint's factorization)."""
+    """The distinct non-constant irreducible factors of ``f``, normalized (flint's factorization,
+    over Q when python-flint 0.9's integer one overflows sorting huge coefficients)."""
     if f.is_zero():
         raise ValueError("factorization of the zero polynomial")
-    _, factors = f.factor()
-    return [normalized(g) for g, _ in factors if not g.is_constant()]
+    try:
+        factors = [g for g, _ in f.factor()[1]]
+    except OverflowError:
+        factors = [_integral(g, f.context()) for g, _ in fmpq_mpoly(f).factor()[1]]
+    return [normalized(g) for g in factors if not g.is_constant()]
+
+
+def _integral(g: fmpq_mpoly, ctx) -> fmpz_mpoly:
+    """A rational polynomial times the lcm of its denominators."""
+    terms = g.to_dict()
+    den = lcm(*(int(c.q) for c in terms.values()))
+    return ctx.from_dict({e: int(c.p) * (den // int(c.q)) for e, c in terms.items()})
 
 
 def coefficients_in(f: fmpz_mpoly, var: int) -> list[fmpz_mpoly]:

@@ -19,6 +19,8 @@ from certformat.formula import And, Atom, BoolConst, formula_size
 from certformat.polytext import poly_to_text
 from certformat.problem import load_problem
 
+from .bench import add_bench
+
 EXIT_OK, EXIT_REFUTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
 
@@ -60,6 +62,7 @@ def build_parser() -> argparse.ArgumentParser:
     add_inspect(verbs)
     add_prove(verbs)
     add_check(verbs)
+    add_bench(verbs)
     return parser
 
 
