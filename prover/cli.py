@@ -19,7 +19,9 @@ from certformat.formula import And, Atom, BoolConst, formula_size
 from certformat.polytext import poly_to_text
 from certformat.problem import load_problem
 
+from .batch import add_batch
 from .bench import add_bench
+from .report import add_report
 
 EXIT_OK, EXIT_REFUTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
@@ -63,6 +65,8 @@ def build_parser() -> argparse.ArgumentParser:
     add_prove(verbs)
     add_check(verbs)
     add_bench(verbs)
+    add_report(verbs)
+    add_batch(verbs)
     return parser
 
 
