@@ -31,6 +31,15 @@ class Replay:
     """Literal text (``a3``, ``~a3``) of the current lemma -> (polynomial, effective relation)."""
     visited: set[str] = field(default_factory=set)
     limits: Limits = field(default_factory=Limits)
+    factor_memo: dict[tuple, list] = field(default_factory=dict)
+
+    def factors(self, f: fmpz_mpoly) -> list[fmpz_mpoly]:
+        """Irreducible factors of f, each factorization done once (the checker's own work,
+        remembered; nothing from the certificate is remembered)."""
+        k = P.key(f)
+        if k not in self.factor_memo:
+            self.factor_memo[k] = P.irreducible_factors(f)
+        return self.factor_memo[k]
 
     @property
     def nvars(self) -> int:
@@ -65,7 +74,8 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[tuple]:
     require_sample_degree(r, sample, node.line)
     if not node.segments:
         raise Rejection("COVER", f"node {node.id} has no intervals", node.line)
-    realized = [realize_interval(r, seg, sample, level) for seg in node.segments]
+    here = RootsHere(sample)
+    realized = [realize_interval(r, seg, here, level) for seg in node.segments]
     require_covers_line(realized, node)
     relevant: list[fmpz_mpoly] = []
     up: set[tuple] = set()
@@ -76,10 +86,24 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[tuple]:
         t = number(r, seg.sample, seg.line)
         require_inside(t, low, high, seg)
         if seg.literal is not None:
-            relevant += check_direct(r, seg, sample, level, t, low, high, up)
+            relevant += check_direct(r, seg, here, level, t, low, high, up)
         else:
-            relevant += check_lift(r, seg, node, sample, level, t, low, high)
+            relevant += check_lift(r, seg, node, here, level, t, low, high)
     return up | project(r, relevant, sample, level, node)
+
+
+class RootsHere:
+    """Real roots of polynomials over one node's sample, each isolation done once per node."""
+
+    def __init__(self, sample):
+        self.sample = sample
+        self.table: dict[tuple, list[RealAlgebraic]] = {}
+
+    def __call__(self, f: fmpz_mpoly) -> list[RealAlgebraic]:
+        k = P.key(f)
+        if k not in self.table:
+            self.table[k] = real_roots_at(f, self.sample)
+        return self.table[k]
 
 
 def number(r: Replay, nid: str, line: int) -> RealAlgebraic:
@@ -99,7 +123,7 @@ def require_sample_degree(r: Replay, sample, line: int) -> None:
                         f"{r.limits.max_sample_degree}", line)
 
 
-def bound_value(r: Replay, bound, sample, level: int, line: int):
+def bound_value(r: Replay, bound, here: RootsHere, level: int, line: int):
     """Rule BOUND: ``pK#j`` is the j-th distinct real root of pK(sample, x_level)."""
     if bound in (NEG_INF, POS_INF):
         return bound
@@ -109,7 +133,7 @@ def bound_value(r: Replay, bound, sample, level: int, line: int):
     if P.level(q) > level:
         raise Rejection("BOUND", f"{bound.poly} involves a variable after x{level}", line)
     try:
-        roots = real_roots_at(q, sample)
+        roots = here(q)
     except KernelError as err:
         raise Rejection("BOUND", f"{bound}: {err}", line) from None
     if not 1 <= bound.index <= len(roots):
@@ -118,13 +142,13 @@ def bound_value(r: Replay, bound, sample, level: int, line: int):
     return roots[bound.index - 1]
 
 
-def realize_interval(r: Replay, seg: Segment, sample, level: int):
+def realize_interval(r: Replay, seg: Segment, here: RootsHere, level: int):
     """The exact (low, high) of a segment; equal values for a point interval."""
     iv = seg.interval
     if iv.low == POS_INF or iv.high == NEG_INF or (iv.point and iv.low in (NEG_INF, POS_INF)):
         raise Rejection("BOUND", f"malformed interval {iv}", seg.line)
-    low = bound_value(r, iv.low, sample, level, seg.line)
-    high = low if iv.point else bound_value(r, iv.high, sample, level, seg.line)
+    low = bound_value(r, iv.low, here, level, seg.line)
+    high = low if iv.point else bound_value(r, iv.high, here, level, seg.line)
     if not iv.point and less(high, low, inclusive=True):
         raise Rejection("BOUND", f"interval {iv} is empty", seg.line)
     return low, high
@@ -181,7 +205,8 @@ class _Ordered:
         return compare(self.a, other.a) < 0
 
 
-def check_direct(r: Replay, seg: Segment, sample, level: int, t, low, high, up: set) -> list:
+def check_direct(r: Replay, seg: Segment, here: RootsHere, level: int, t, low, high,
+                 up: set) -> list:
     """Rule DIRECT: the literal has one sign on the interval and that sign falsifies it."""
     text = str(seg.literal)
     if text not in r.literals:
@@ -189,9 +214,10 @@ def check_direct(r: Replay, seg: Segment, sample, level: int, t, low, high, up: 
     p, rel = r.literals[text]
     if P.level(p) > level:
         raise Rejection("DIRECT", f"{text} involves a variable after x{level}", seg.line)
+    sample = here.sample
     if is_nullified(p, sample):
         return check_nullified(r, seg, p, rel, level, up)
-    roots = real_roots_at(p, sample) if P.level(p) == level else []
+    roots = here(p) if P.level(p) == level else []
     if seg.interval.point:
         value_sign = sign_at(p, sample + (low,))
     else:
@@ -210,11 +236,12 @@ def check_nullified(r: Replay, seg: Segment, p, rel: str, level: int, up: set) -
                         f"not falsify relation {rel}", seg.line)
     for c in P.coefficients_in(p, level - 1):
         if not c.is_zero():
-            up.update(P.key(f) for f in P.irreducible_factors(c))
+            up.update(P.key(f) for f in r.factors(c))
     return []
 
 
-def check_lift(r: Replay, seg: Segment, node: Node, sample, level: int, t, low, high) -> list:
+def check_lift(r: Replay, seg: Segment, node: Node, here: RootsHere, level: int, t, low,
+               high) -> list:
     """Rule LIFT: the child covers the next line; the declared set holds what it passes up and
     its level-``level`` members' nearest roots around the sample are the interval's bounds."""
     if level >= r.nvars:
@@ -229,24 +256,23 @@ def check_lift(r: Replay, seg: Segment, node: Node, sample, level: int, t, low, 
         if P.level(r.polys[pid]) > level:
             raise Rejection("LIFT", f"declared {pid} involves a variable after x{level}", seg.line)
         if not r.polys[pid].is_constant():
-            declared += P.irreducible_factors(r.polys[pid])
+            declared += r.factors(r.polys[pid])
     passed = check_node(r, child, node.sample + (seg.sample,))
     keys = {P.key(f) for f in declared}
     missing = passed - keys
     if missing:
         raise Rejection("PROJECT", f"projection not declared: {len(missing)} polynomial(s) that "
                         f"node {child.id} passes up are missing from 'keep'", seg.line)
-    require_nearest_roots(r, seg, sample, level, t, low, high,
-                          [f for f in declared if P.level(f) == level])
+    require_nearest_roots(seg, here, t, low, high, [f for f in declared if P.level(f) == level])
     return declared
 
 
-def require_nearest_roots(r: Replay, seg: Segment, sample, level: int, t, low, high, q) -> None:
+def require_nearest_roots(seg: Segment, here: RootsHere, t, low, high, q) -> None:
     """Rule LIFT (bounds): the interval is the sector or section of the declared set around t."""
     roots = []
     for f in q:
         try:
-            roots += real_roots_at(f, sample)
+            roots += here(f)
         except KernelError:
             raise Rejection("LIFT", "a declared polynomial vanishes identically at the sample",
                             seg.line) from None
@@ -277,7 +303,7 @@ def project(r: Replay, relevant: list, sample, level: int, node: Node) -> set[tu
     main: dict[tuple, fmpz_mpoly] = {}
     up: set[tuple] = set()
     for g in relevant:
-        for f in P.irreducible_factors(g):
+        for f in r.factors(g):
             if P.level(f) == level:
                 main.setdefault(P.key(f), f)
             else:
@@ -285,30 +311,30 @@ def project(r: Replay, relevant: list, sample, level: int, node: Node) -> set[tu
     var = level - 1
     for f in main.values():
         r.limits.tick(node.line)
-        up |= coefficient_chain(f, var, sample, node)
+        up |= coefficient_chain(r, f, var, sample, node)
         if P.degree_in(f, var) >= 2:
-            up |= nonzero_factors(P.discriminant(f, var), "discriminant", node)
+            up |= nonzero_factors(r, P.discriminant(f, var), "discriminant", node)
     for f, g in combinations(main.values(), 2):
         r.limits.tick(node.line)
-        up |= nonzero_factors(P.resultant(f, g, var), "resultant", node)
+        up |= nonzero_factors(r, P.resultant(f, g, var), "resultant", node)
     return up
 
 
-def coefficient_chain(f, var: int, sample, node: Node) -> set[tuple]:
+def coefficient_chain(r: Replay, f, var: int, sample, node: Node) -> set[tuple]:
     """Coefficients of f in x_level from the leading one to the first non-zero at the sample."""
     out: set[tuple] = set()
     for c in P.coefficients_in(f, var):
         if c.is_zero():
             continue
-        out |= {P.key(g) for g in P.irreducible_factors(c)} if not c.is_constant() else set()
+        out |= {P.key(g) for g in r.factors(c)} if not c.is_constant() else set()
         if sign_at(c, sample) != 0:
             return out
     raise Rejection("PROJECT", f"node {node.id}: a characterization polynomial vanishes "
                     "identically at the sample (nullification)", node.line)
 
 
-def nonzero_factors(g, what: str, node: Node) -> set[tuple]:
+def nonzero_factors(r: Replay, g, what: str, node: Node) -> set[tuple]:
     """The irreducible factors of a projection polynomial, which must not be zero."""
     if g.is_zero():
         raise Rejection("PROJECT", f"node {node.id}: a {what} is identically zero", node.line)
-    return {P.key(f) for f in P.irreducible_factors(g)} if not g.is_constant() else set()
+    return {P.key(f) for f in r.factors(g)} if not g.is_constant() else set()

@@ -45,13 +45,13 @@ import hashlib
 import json
 import os
 import sys
-import threading
 import time
 from collections import Counter
 from dataclasses import dataclass
 from pathlib import Path
 
 from certformat.errors import InputError
+from certformat.terms import MAX_FILE_BYTES
 
 from .pool import run_all
 
@@ -61,6 +61,8 @@ STATE_VERSION = 1
 GRACE = 30.0
 """Seconds a task gets beyond its cooperative time limits before it is given up."""
 MAX_CERTIFICATE_BYTES = 256 * 1024 * 1024
+CONNECT_TIMEOUT = 30.0
+"""Seconds to wait for the Dask scheduler to answer."""
 
 PROVE, PROVE_CHECK, CHECK_ONLY = "prove", "prove+check", "check-only"
 
@@ -229,11 +231,10 @@ class Options:
 
 def run_batch(jobs: list[Job], options: Options, on_record=None) -> list[dict]:
     """Run every job; returns the records in the order of ``jobs``.  ``on_record(record)``
-    is called as each one is known (under a lock)."""
+    is called as each one is known (one at a time)."""
     records: list[dict | None] = [None] * len(jobs)
     states = {root: _load_state(root) for root in {j.state_root for j in jobs}}
     tasks = []
-    lock = threading.Lock()
 
     def finish(i: int, record: dict) -> None:
         record["outcome"], record["failure"] = classify(record, options.mode)
@@ -244,7 +245,7 @@ def run_batch(jobs: list[Job], options: Options, on_record=None) -> list[dict]:
     for i, job in enumerate(jobs):
         record = blank_record(job)
         try:
-            data = _read(job.problem, None)
+            data = _read(job.problem, MAX_FILE_BYTES)
         except InputError as err:
             record.update(answer="error", reason=_one_line(str(err)))
             finish(i, record)
@@ -316,8 +317,7 @@ def run_batch(jobs: list[Job], options: Options, on_record=None) -> list[dict]:
                 record.update(answer="unknown", reason=value)
             if options.mode == CHECK_ONLY:
                 record["certificate"] = job.certificate
-        with lock:
-            finish(i, record)
+        finish(i, record)
 
     try:
         if options.executor == "dask":
@@ -378,13 +378,13 @@ def _save_state(root: str, records: dict) -> None:
         print(f"tessella: warning: cannot save the batch state: {err}", file=sys.stderr)
 
 
-def _read(path: str, limit: int | None) -> bytes:
+def _read(path: str, limit: int) -> bytes:
     try:
         with open(path, "rb") as f:
-            data = f.read() if limit is None else f.read(limit + 1)
+            data = f.read(limit + 1)
     except OSError as err:
         raise InputError(f"cannot read the file: {err.strerror or err}", path) from None
-    if limit is not None and len(data) > limit:
+    if len(data) > limit:
         raise InputError(f"file larger than {limit} bytes", path)
     return data
 
@@ -412,7 +412,7 @@ def run_on_dask(function, tasks: list[tuple], limit: float, scheduler: str, on_r
         raise InputError("the dask executor needs the optional extra: "
                          "pip install 'tessella[cluster]'", "--executor dask") from None
     try:
-        client = Client(scheduler, timeout=30)
+        client = Client(scheduler, timeout=CONNECT_TIMEOUT)
     except (OSError, TimeoutError, ValueError) as err:
         raise InputError(f"cannot connect to the Dask scheduler: {_one_line(str(err))}",
                          scheduler) from None

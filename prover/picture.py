@@ -30,6 +30,9 @@ SWEEP = 400
 """Abscissae per lifted interval (and grid points per axis for zero curves)."""
 
 
+DISPLAY_ONLY = "Drawn in floating point, for display only; the checker decides exactly."
+
+
 class PictureUnavailable(Exception):
     """No picture can be drawn; the message says why, for the report."""
 
@@ -207,11 +210,15 @@ def draw_covering(cert: Certificate) -> tuple[bytes, str]:
     fig.tight_layout()
     caption = (f"Covering of {len(lemmas)} of {len(cert.lemmas)} lemma(s) over "
                f"{names[0]} (horizontal) and {names[1]} (vertical); window "
-               f"{names[0]} in [{x0:.3g}, {x1:.3g}], {names[1]} in [{y0:.3g}, {y1:.3g}].")
+               f"{names[0]} in [{x0:.3g}, {x1:.3g}], {names[1]} in [{y0:.3g}, {y1:.3g}]. "
+               "Each cell is filled in the colour of the literal that rules it out (overlaps "
+               "blend); black dots are sample points, dotted lines the lines the child nodes "
+               f"cover, thin curves the zero sets of the lemma's polynomials. {DISPLAY_ONLY}")
     return _png(fig, plt), caption
 
 
 def _draw_lemma(ax, cert, lemma, names, xr, yr, np) -> None:
+    from matplotlib.transforms import offset_copy
     colours = plt_colours(len(lemma.literals))
     colour = {str(lit): colours[i] for i, lit in enumerate(lemma.literals)}
     used: dict[str, None] = {}
@@ -240,16 +247,18 @@ def _draw_lemma(ax, cert, lemma, names, xr, yr, np) -> None:
                 continue
             inset = 1e-9 * (hi - lo)
             xs = np.linspace(lo + inset, hi - inset, SWEEP)
-        for cseg in child.segments:
+        for k, cseg in enumerate(child.segments):
             key = str(cseg.literal)
             used[key] = None
             low = np.array([_root_at(cert, cseg.interval.low, x, np) for x in xs])
             high = low if cseg.interval.point else np.array(
                 [_root_at(cert, cseg.interval.high, x, np) for x in xs])
             low, high = np.clip(low, *yr), np.clip(high, *yr)
-            if seg.interval.point:
-                ax.plot([a, a], [low[0], high[0]], color=colour[key], lw=3, alpha=0.9,
-                        solid_capstyle="butt")
+            if seg.interval.point:  # side by side, so that overlapping pieces both show
+                shift = (k - (len(child.segments) - 1) / 2) * 2.5
+                ax.plot([a, a], [low[0], high[0]], color=colour[key], lw=2.5, alpha=0.9,
+                        solid_capstyle="butt",
+                        transform=offset_copy(ax.transData, ax.figure, x=shift, units="points"))
             elif cseg.interval.point:
                 ax.plot(xs, low, color=colour[key], lw=2.5, alpha=0.9)
             else:
@@ -372,5 +381,5 @@ def draw_witness(cert: Certificate, problem) -> tuple[bytes, str]:
     ax.set_title("Witness and the zero curves of the atoms", fontsize=10)
     fig.tight_layout()
     caption = (f"The witness ({names[0]}, {names[1]}) = ({point[0]:.6g}, {point[1]:.6g}) "
-               "over the zero curves of the problem's atoms.")
+               f"over the zero curves of the problem's atoms. {DISPLAY_ONLY}")
     return _png(fig, plt), caption

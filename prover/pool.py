@@ -87,8 +87,13 @@ def run_all(function: Callable, tasks: Iterable[tuple], limit: float, jobs: int,
         finally:
             slot.stop()
 
-    threads = [threading.Thread(target=drive) for _ in range(max(1, jobs))]
+    threads = [threading.Thread(target=drive, daemon=True) for _ in range(max(1, jobs))]
     for t in threads:
         t.start()
-    for t in threads:
-        t.join()
+    try:
+        for t in threads:
+            t.join()
+    except BaseException:  # Ctrl-C: start nothing more; the daemon workers die with us
+        with lock:
+            queue.clear()
+        raise

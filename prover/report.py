@@ -22,7 +22,7 @@ import json
 import platform
 from pathlib import Path
 
-from certformat.certio import load_certificate, number_text
+from certformat.certio import MAX_CERTIFICATE_BYTES, number_text, read_certificate
 from certformat.errors import InputError
 from certformat.problem import load_problem
 
@@ -85,8 +85,7 @@ def make_report(problem_path: str, cert_path: str | None, out_dir: str,
         cert_path, prover_note = _prove_into(problem, out, timeout)
     cert = certificate_bytes = None
     if cert_path is not None:
-        cert = load_certificate(cert_path)
-        certificate_bytes = _read_bytes(cert_path, "certificate")
+        cert, certificate_bytes = _load_certificate(cert_path)
     verdict = _verdict(problem, cert)
     data = report_data(problem, cert, cert_path, certificate_bytes, verdict, prover_note)
     png = _picture(problem, cert, verdict, data)
@@ -128,11 +127,20 @@ def _prove_into(problem, out: Path, timeout) -> tuple[str | None, str]:
     return str(path), f"the prover answered {result.answer}; the {kind} was written by this report"
 
 
-def _read_bytes(path: str, what: str) -> bytes:
+def _load_certificate(path: str):
+    """The certificate and the very bytes it was parsed from (the report hashes what it checked)."""
     try:
-        return Path(path).read_bytes()
+        with open(path, "rb") as f:
+            data = f.read(MAX_CERTIFICATE_BYTES + 1)
     except OSError as err:
-        raise InputError(f"cannot read the {what}: {err.strerror or err}", path) from None
+        raise InputError(f"cannot read certificate: {err.strerror or err}", path) from None
+    if len(data) > MAX_CERTIFICATE_BYTES:
+        raise InputError(f"certificate over the limit of {MAX_CERTIFICATE_BYTES} bytes", path)
+    try:
+        text = data.decode("utf-8")
+    except UnicodeDecodeError as err:
+        raise InputError(f"certificate is not UTF-8 text (byte {err.start})", path) from None
+    return read_certificate(text, path), data
 
 
 def _write(path: Path, content) -> None:
@@ -328,7 +336,7 @@ def _md_block(lines: list[str]) -> list[str]:
 def markdown(data: dict) -> str:
     p, c, ck = data["problem"], data["certificate"], data["checker"]
     versions = ck["versions"]
-    out = [f"# {data['title']}", "", "| | |", "|---|---|",
+    out = [f"# {_md_escape(data['title'])}", "", "| | |", "|---|---|",
            f"| Problem file | {_md_code(p['file'])} |",
            f"| Problem SHA-256 | `{p['sha256']}` |"]
     if c:
@@ -351,17 +359,16 @@ def markdown(data: dict) -> str:
         out += _md_block([f"{w['variable']} = {w['exact']}"
                           + (f"   (≈ {w['approx']})" if w["approx"] else "")
                           for w in data["witness"]]) + [""]
-    if data["statistics"]:
-        out += ["## Certificate statistics", "", "| | |", "|---|---:|"]
-        out += [f"| {k} | {v} |" for k, v in data["statistics"].items()] + [""]
     out += ["## Picture", ""]
     pic = data["picture"]
     if pic["file"]:
-        out += [f"![{_md_escape(pic['caption'])}]({pic['file']})", "", _md_escape(pic["caption"]),
-                "Cells are coloured by the literal that rules them out (overlaps blend); "
-                "black dots are sample points. Floating-point drawing, for display only.", ""]
+        out += [f"![{_md_escape(pic['caption'])}]({pic['file']})", "",
+                _md_escape(pic["caption"]), ""]
     else:
         out += [f"Picture skipped: {_md_escape(pic['skipped'])}.", ""]
+    if data["statistics"]:
+        out += ["## Certificate statistics", "", "| | |", "|---|---:|"]
+        out += [f"| {k} | {v} |" for k, v in data["statistics"].items()] + [""]
     out += ["## Checker and trusted base", "",
             f"Checker version {versions['checker']} (tessella {versions['tessella']}), run "
             f"in-process with its default resource limits. Trusted base: the modules below "
@@ -426,10 +433,11 @@ def html_page(data: dict, png: bytes | None) -> str:
             ("Problem SHA-256", f"<code id=\"problem-sha256\">{_e(p['sha256'])}</code>")]
     if c:
         rows += [("Certificate file", f"<code>{_e(c['file'])}</code>"),
-                 ("Certificate SHA-256", f"<code id=\"certificate-sha256\">{_e(c['sha256'])}</code>"),
+                 ("Certificate SHA-256",
+                  f"<code id=\"certificate-sha256\">{_e(c['sha256'])}</code>"),
                  ("Certificate claims", _e(c["claims"]))]
-    rows += [("Verdict of the checker",
-              f"<span id=\"verdict\" class=\"{_e(v['verdict'])}\">{_e(_verdict_line(data))}</span>"),
+    verdict = f"<span id=\"verdict\" class=\"{_e(v['verdict'])}\">{_e(_verdict_line(data))}</span>"
+    rows += [("Verdict of the checker", verdict),
              ("Checker version", _e(versions["checker"]))]
     out = ["<!DOCTYPE html>", "<html lang=\"en\"><head><meta charset=\"utf-8\">",
            "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; "
@@ -451,19 +459,17 @@ def html_page(data: dict, png: bytes | None) -> str:
                 _table([(f"<code>{_e(w['variable'])}</code>", f"<code>{_e(w['exact'])}</code>",
                          _e(w["approx"] or "")) for w in data["witness"]],
                        header=("variable", "exact value", "approximately"))]
-    if data["statistics"]:
-        out += ["<h2>Certificate statistics</h2>",
-                _table([(_e(k), f"{n}") for k, n in data["statistics"].items()], numeric=True)]
     out.append("<h2>Picture</h2>")
     pic = data["picture"]
     if pic["file"] and png is not None:
         src = "data:image/png;base64," + base64.b64encode(png).decode("ascii")
         out += [f"<figure><img id=\"picture\" src=\"{src}\" alt=\"{_e(pic['caption'])}\">",
-                f"<figcaption>{_e(pic['caption'])} Cells are coloured by the literal that rules "
-                "them out (overlaps blend); black dots are sample points. Floating-point "
-                "drawing, for display only.</figcaption></figure>"]
+                f"<figcaption>{_e(pic['caption'])}</figcaption></figure>"]
     else:
         out.append(f"<p>Picture skipped: {_e(pic['skipped'])}.</p>")
+    if data["statistics"]:
+        out += ["<h2>Certificate statistics</h2>",
+                _table([(_e(k), f"{n}") for k, n in data["statistics"].items()], numeric=True)]
     out += ["<h2>Checker and trusted base</h2>",
             f"<p>Checker version {_e(versions['checker'])} (tessella {_e(versions['tessella'])}), "
             "run in-process with its default resource limits. Trusted base: the modules below "
