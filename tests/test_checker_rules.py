@@ -65,3 +65,25 @@ def test_mutant_is_rejected_by_the_right_rule(what, old, new, rule):
     v = verdict(CERT.replace(old, new, 1))
     assert not v.accepted, what
     assert v.rule == rule, (what, v)
+
+
+@pytest.mark.parametrize("limits, message", [
+    ({"max_degree": 1}, "degree above 1"),
+    ({"max_coefficient_bits": 0}, "coefficient over 0 bits"),
+    ({"max_steps": 5}, "steps exceed the limit 5"),
+    ({"max_seconds": 0.0}, "time limit"),
+    ({"max_sample_degree": 0}, "algebraic degree"),
+], ids=["degree", "coefficients", "steps", "wall time", "sample degree"])
+def test_limits_reject_with_a_clear_message(limits, message):
+    from checker.limits import Limits
+    v = check(problem(), read_certificate(CERT), Limits(**limits))
+    assert not v.accepted and v.rule == "LIMITS" and message in v.reason, v
+
+
+def test_certificate_over_the_size_limit_is_an_input_error(tmp_path):
+    from certformat.certio import load_certificate
+    from certformat.errors import InputError
+    path = tmp_path / "big.cert"
+    path.write_text(CERT)
+    with pytest.raises(InputError, match="over the limit"):
+        load_certificate(str(path), max_bytes=100)

@@ -111,7 +111,7 @@ def false_lemmas(name: str) -> list[str]:
 
 
 MUTATIONS = ("drop_line", "swap_lines", "shift_index", "replace_justification",
-             "shrink_keep", "move_sample", "truncate", "flip_literal")
+             "shrink_keep", "move_sample", "truncate", "flip_literal", "corrupt_coefficient")
 
 
 def mutate(text: str, how: str, rnd) -> str:
@@ -147,6 +147,16 @@ def mutate(text: str, how: str, rnd) -> str:
         if segs and nums:
             i = rnd.choice(segs)
             lines[i] = re.sub(r" at n\d+", " at " + rnd.choice(nums), lines[i])
+    elif how == "corrupt_coefficient":
+        polys = [i for i, l in enumerate(lines) if l.startswith(("poly", "num")) and
+                 re.search(r"\d", l.split("=", 1)[1])]
+        if polys:
+            i = rnd.choice(polys)
+            head, body = lines[i].split("=", 1)
+            digits = [m.start() for m in re.finditer(r"\d", body)]
+            k = rnd.choice(digits)
+            body = body[:k] + str((int(body[k]) + rnd.randrange(1, 10)) % 10) + body[k + 1:]
+            lines[i] = head + "=" + body
     elif how == "truncate":
         lines = lines[:rnd.randrange(1, len(lines))] if len(lines) > 1 else lines
     elif how == "flip_literal":
@@ -178,7 +188,7 @@ def test_false_lemmas_are_rejected_whatever_the_mutation(name):
     texts = false_lemmas(name)
     assert texts, f"{name}: no literal of the lemma could be dropped to a satisfiable rest"
 
-    @settings(max_examples=60, deadline=None, suppress_health_check=list(HealthCheck))
+    @settings(max_examples=100, deadline=None, suppress_health_check=list(HealthCheck))
     @given(st.sampled_from(texts), st.lists(st.sampled_from(MUTATIONS), max_size=3), st.randoms())
     def run(text, hows, rnd):
         for how in hows:
