@@ -219,9 +219,9 @@ def draw_covering(cert: Certificate) -> tuple[bytes, str]:
 
 def _draw_lemma(ax, cert, lemma, names, xr, yr, np) -> None:
     from matplotlib.transforms import offset_copy
-    colours = plt_colours(len(lemma.literals))
+    colours = _colours(len(lemma.literals))
     colour = {str(lit): colours[i] for i, lit in enumerate(lemma.literals)}
-    used: dict[str, None] = {}
+    used: dict[str, Literal] = {}
     dots = []
     root = cert.nodes[lemma.root]
     for seg in root.segments:
@@ -230,10 +230,10 @@ def _draw_lemma(ax, cert, lemma, names, xr, yr, np) -> None:
         t = number_value(cert, seg.sample)
         if seg.literal is not None:  # a strip (or line) over x1 ruled out by one literal
             key = str(seg.literal)
-            used[key] = None
+            used[key] = seg.literal
             if seg.interval.point:
                 ax.axvline(a, color=colour[key], lw=2.5, alpha=0.9)
-            else:
+            elif max(a, xr[0]) < min(b, xr[1]):
                 ax.axvspan(max(a, xr[0]), min(b, xr[1]), color=colour[key], alpha=0.35, lw=0)
             dots.append((t, yr[0] + 0.02 * (yr[1] - yr[0])))
             continue
@@ -249,7 +249,7 @@ def _draw_lemma(ax, cert, lemma, names, xr, yr, np) -> None:
             xs = np.linspace(lo + inset, hi - inset, SWEEP)
         for k, cseg in enumerate(child.segments):
             key = str(cseg.literal)
-            used[key] = None
+            used[key] = cseg.literal
             low = np.array([_root_at(cert, cseg.interval.low, x, np) for x in xs])
             high = low if cseg.interval.point else np.array(
                 [_root_at(cert, cseg.interval.high, x, np) for x in xs])
@@ -270,8 +270,8 @@ def _draw_lemma(ax, cert, lemma, names, xr, yr, np) -> None:
     inside = [(x, y) for x, y in dots if xr[0] <= x <= xr[1] and yr[0] <= y <= yr[1]]
     if inside:
         ax.plot(*zip(*inside), "o", color="black", ms=4, zorder=5)
-    handles = [_patch(colour[k], f"violates {literal_text(cert, _parse_literal(k), names)}"
-                      f"  ({k})") for k in used]
+    handles = [_patch(colour[k], f"violates {literal_text(cert, lit, names)}  ({k})")
+               for k, lit in used.items()]
     handles.append(ax.plot([], [], "o", color="black", ms=4)[0])
     handles[-1].set_label("sample point of a cell")
     handles.append(ax.plot([], [], color="0.25", lw=0.8)[0])
@@ -288,14 +288,10 @@ def _draw_lemma(ax, cert, lemma, names, xr, yr, np) -> None:
         ax.set_aspect("equal", adjustable="box")
 
 
-def plt_colours(k: int) -> list:
+def _colours(k: int) -> list:
     palette = ["#1f77b4", "#ff7f0e", "#2ca02c", "#d62728", "#9467bd", "#8c564b", "#e377c2",
                "#7f7f7f", "#bcbd22", "#17becf"]
     return [palette[i % len(palette)] for i in range(k)]
-
-
-def _parse_literal(text: str) -> Literal:
-    return Literal(text[1:], False) if text.startswith("~") else Literal(text)
 
 
 def _patch(colour, label):
@@ -356,7 +352,7 @@ def draw_witness(cert: Certificate, problem) -> tuple[bytes, str]:
     handles = []
     from certformat.polytext import poly_to_text
     from matplotlib.lines import Line2D
-    colours = plt_colours(len(problem.atoms()))
+    colours = _colours(len(problem.atoms()))
     seen = set()
     for atom, colour in zip(problem.atoms(), colours):
         poly = {tuple(int(e) for e in k): int(c) for k, c in atom.poly.to_dict().items()}

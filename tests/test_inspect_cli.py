@@ -9,7 +9,7 @@ SAMPLES = Path(__file__).resolve().parents[1] / "samples"
 
 
 def test_every_sample_inspects(tessella):
-    for path in sorted(SAMPLES.iterdir()):
+    for path in sorted(p for p in SAMPLES.iterdir() if p.suffix in (".tess", ".smt2")):
         code, out, err = tessella("inspect", path)
         assert (code, err) == (0, ""), path
         assert f"sha256:            {hashlib.sha256(path.read_bytes()).hexdigest()}" in out
