@@ -246,21 +246,6 @@ def formula_depth(f: Formula) -> int:
     return deepest
 
 
-def formula_size(f: Formula) -> int:
-    """Number of nodes of the Boolean structure."""
-    n, stack = 0, [f]
-    while stack:
-        g = stack.pop()
-        n += 1
-        if isinstance(g, Not):
-            stack.append(g.arg)
-        elif isinstance(g, (And, Or)):
-            stack.extend(g.args)
-        elif isinstance(g, Iff):
-            stack.extend((g.left, g.right))
-    return n
-
-
 def evaluate(f: Formula, atom_value, bool_value=lambda name: False) -> bool:
     """Truth of ``f`` given truth values of its atoms and Boolean variables."""
     if isinstance(f, BoolConst):

@@ -33,8 +33,12 @@ tuples: a non-zero integer polynomial that vanishes at every root of
 ``q(a, x_k)`` once ``p`` is known not to be nullified at ``a`` (checked first).
 This removes any degeneration of the plain norm ``R(0, x_k)`` (which is zero
 when some conjugate tuple nullifies ``q``).  The real roots of ``N`` are
-isolated exactly and each candidate ``r`` is kept iff ``sign_at(p, a + (r,))``
-is zero; when no algebraic coordinate occurs, ``N = -q`` and all are kept.
+isolated exactly and each candidate ``r`` is kept iff ``p(a, .)`` changes sign
+between rationals that separate ``r`` from the other roots of ``N`` (then its root
+there is ``r``: intermediate value theorem), or else ``sign_at(p, a + (r,))`` is
+zero; when no algebraic coordinate occurs, ``N = -q`` and all are kept.  The
+plain norm (iterated resultant of ``q`` itself) is used when it is non-zero: it
+is ``S(0, x_k)`` with ``m = 0``.
 """
 from __future__ import annotations
 
@@ -144,6 +148,29 @@ def is_nullified(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> bool:
     return all(sign_at(c, point) == 0 for c in _coefficients_in(p, k))
 
 
+def _norm(q: fmpz_mpoly, point: Sequence[RealAlgebraic], k: int) -> fmpz_poly:
+    """N(x_k): the plain iterated resultant of q with the d_i when it is non-zero (it equals
+    S(0, x_k) with m = 0), else S(0, x_k) from the elimination with z (module docstring)."""
+    N = q
+    for i, a in enumerate(point):
+        if not a.is_rational() and N.degrees()[i] > 0:
+            d = {tuple(j if v == i else 0 for v in range(q.context().nvars())): c
+                 for j, c in enumerate(a.poly.coeffs())}
+            N = N.resultant(q.context().from_dict(d), q.context().names()[i])
+    if not N.is_zero():
+        coeffs = [0] * (N.degrees()[k] + 1)
+        for exps, c in N.terms():
+            coeffs[exps[k]] = c
+        return fmpz_poly(coeffs)
+    R, z = _eliminate(q, point)
+    m = min(exps[z] for exps, _ in R.terms())
+    norm = [0] * (R.degrees()[k] + 1)
+    for exps, c in R.terms():
+        if exps[z] == m:
+            norm[exps[k]] = c
+    return fmpz_poly(norm)
+
+
 def real_roots_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> list[RealAlgebraic]:
     """The distinct real roots of p(point, x_k), k = len(point), increasing, each checked (module docstring)."""
     k = len(point)
@@ -151,13 +178,29 @@ def real_roots_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> list[RealAlg
         raise KernelError(f"{p} vanishes identically in x{k} at the point")
     point = [reduced(a) for a in point]
     q = _substitute_rationals(p, point)
-    R, z = _eliminate(q, point)
-    m = min(exps[z] for exps, _ in R.terms())
-    norm = [0] * (R.degrees()[k] + 1)
-    for exps, c in R.terms():
-        if exps[z] == m:
-            norm[exps[k]] = c
-    candidates = real_roots(fmpz_poly(norm))
+    candidates = real_roots(_norm(q, point, k))
     if all(d == 0 for d in q.degrees()[:k]):
         return candidates
-    return [r for r in candidates if sign_at(p, [*point, r]) == 0]
+    cuts = _separators(candidates)
+    return [r for r, a, b in zip(candidates, cuts, cuts[1:])
+            if _sign_change(p, point, a, b) or sign_at(p, [*point, r]) == 0]
+
+
+def _separators(roots: list[RealAlgebraic]) -> list[fmpq]:
+    """Rationals c0 < r1 < c1 < ... < rn < cn, each strictly between consecutive roots."""
+    if not roots:
+        return [fmpq(0)]
+    roots = list(roots)
+    cuts = [roots[0].low - 1]
+    for i in range(len(roots) - 1):
+        while not roots[i].high < roots[i + 1].low:
+            roots[i] = refine(roots[i], (roots[i].high - roots[i].low) / 2)
+            roots[i + 1] = refine(roots[i + 1], (roots[i + 1].high - roots[i + 1].low) / 2)
+        cuts.append((roots[i].high + roots[i + 1].low) / 2)
+    return cuts + [roots[-1].high + 1]
+
+
+def _sign_change(p: fmpz_mpoly, point, a: fmpq, b: fmpq) -> bool:
+    """p(point, .) has opposite signs at a and b, so a root between them (intermediate value theorem)."""
+    at = [sign_at(p, [*point, RealAlgebraic.rational(c)]) for c in (a, b)]
+    return at[0] * at[1] < 0

@@ -133,8 +133,9 @@ def _walk(root: Path):
 def run_one(path: str, data: bytes, cert_path: str, cert_text: str | None, mode: str,
             timeout: float) -> tuple[dict, str | None]:
     """Parse the problem ``data`` (read from ``path``), then prove it (and check the result),
-    or with ``mode`` check-only check ``cert_text`` (read from ``cert_path``).  Returns the record's fields found here
-    and the new certificate text (or None).  Raises nothing for bad input."""
+    or with ``mode`` check-only check ``cert_text`` (read from ``cert_path``).  Returns the
+    record's fields found here and the new certificate text (or None).  Raises nothing for
+    bad input."""
     from certformat.problem import parse_problem_bytes
     record: dict = {"sha256": hashlib.sha256(data).hexdigest()}
     try:

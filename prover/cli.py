@@ -15,8 +15,8 @@ import sys
 import time
 
 from certformat.errors import InputError
-from certformat.formula import And, Atom, BoolConst, formula_size
-from certformat.polytext import poly_to_text
+from certformat.formula import And, Atom, BoolConst, Iff, Not, Or
+from prover.polytext import poly_to_text
 from certformat.problem import load_problem
 
 from .batch import add_batch
@@ -273,6 +273,21 @@ def _inspect_text(report: dict) -> str:
         lines.append(f"  [{i}] {atom['atom']}")
         lines.append(f"      degree {atom['degree']} ({per_variable})")
     return "\n".join(lines)
+
+
+def formula_size(f) -> int:
+    """Number of nodes of the Boolean structure."""
+    n, stack = 0, [f]
+    while stack:
+        g = stack.pop()
+        n += 1
+        if isinstance(g, Not):
+            stack.append(g.arg)
+        elif isinstance(g, (And, Or)):
+            stack.extend(g.args)
+        elif isinstance(g, Iff):
+            stack.extend((g.left, g.right))
+    return n
 
 
 def _one_line(text: str) -> str:

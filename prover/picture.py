@@ -350,7 +350,7 @@ def draw_witness(cert: Certificate, problem) -> tuple[bytes, str]:
     fig, ax = plt.subplots(figsize=(6.6, 7.2))
     gx, gy = np.meshgrid(np.linspace(*xr, SWEEP), np.linspace(*yr, SWEEP))
     handles = []
-    from certformat.polytext import poly_to_text
+    from prover.polytext import poly_to_text
     from matplotlib.lines import Line2D
     colours = _colours(len(problem.atoms()))
     seen = set()

@@ -24,7 +24,7 @@ SAT_SMT2 = """(set-logic QF_NRA)
 (assert (> (* x x) 2.0))
 (check-sat)
 """
-WRONG_TESS = "# declared sat, but x^2 < 0 has no real solution\nreal x\nassert x^2 < 0\nexpect sat\n"
+WRONG_TESS = "# declared sat, but x^2 < 0 has no solution\nreal x\nassert x^2 < 0\nexpect sat\n"
 MALFORMED_TESS = "real x\nassert x^^2 < 0\n"
 
 

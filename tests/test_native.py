@@ -11,7 +11,7 @@ import sympy
 from certformat.errors import InputError
 from certformat.formula import And, Atom, BoolConst, BoolVar, Iff, Not, Or
 from certformat.native import parse_native
-from certformat.polytext import poly_to_text
+from prover.polytext import poly_to_text
 from certformat.problem import load_problem
 from certformat.terms import MAX_DEGREE, MAX_NESTING
 

@@ -9,7 +9,7 @@ import sympy
 
 from certformat.errors import InputError
 from certformat.formula import And, Atom, BoolConst, BoolVar, Iff, Not, Or
-from certformat.polytext import poly_to_text
+from prover.polytext import poly_to_text
 from certformat.smtlib import MAX_ITE_CASES, parse_smtlib
 from certformat.terms import MAX_NESTING
 
