@@ -99,10 +99,12 @@ def squarefree_part(p: fmpz_poly) -> fmpq_poly:
 
 
 def sturm_sequence(p: fmpq_poly) -> list[fmpq_poly]:
-    """The Sturm sequence p, p', -rem(p, p'), ... down to the last non-zero remainder."""
+    """The Sturm sequence p, p', -rem(p, p'), ... down to the last non-zero remainder, each member
+    scaled by a positive rational to a primitive integer polynomial (signs, hence counts, unchanged)."""
     seq = [p, p.derivative()]
     while not seq[-1].is_zero():
-        seq.append(-(seq[-2] % seq[-1]))
+        r = (-(seq[-2] % seq[-1])).numer()
+        seq.append(fmpq_poly(r / r.content()) if not r.is_zero() else fmpq_poly(0))
     return seq[:-1]
 
 
