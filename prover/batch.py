@@ -314,6 +314,8 @@ def run_batch(jobs: list[Job], options: Options, on_record=None) -> list[dict]:
             elif kind == "killed":
                 record.update(answer="unknown",
                               reason=f"killed at the hard limit of {options.limit:g} s")
+                spent = "check_seconds" if options.mode == CHECK_ONLY else "prove_seconds"
+                record[spent] = round(value, 6)
             else:
                 record.update(answer="unknown", reason=value)
             if options.mode == CHECK_ONLY:
