@@ -219,7 +219,8 @@ def check_direct(r: Replay, seg: Segment, here: RootsHere, level: int, t, low, h
         return check_nullified(r, seg, p, rel, level, up)
     roots = here(p) if P.level(p) == level else []
     if seg.interval.point:
-        value_sign = sign_at(p, sample + (low,))
+        on_root = any(compare(z, low) == 0 for z in roots)
+        value_sign = 0 if on_root else sign_at(p, sample + (low,))
     else:
         if any(less(low, z) and less(z, high) for z in roots):
             raise Rejection("DIRECT", f"{text} has a root inside {seg.interval}", seg.line)

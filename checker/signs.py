@@ -124,9 +124,9 @@ def sign_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> int:
                 return 1
             if value < 0:
                 return -1
-            if gap is None:
+            if gap is None and prec >= 256:
                 gap = _root_gap(*_eliminate(q, point))
-            if abs(value) < arb(gap):
+            if gap is not None and abs(value) < arb(gap):
                 return 0
         prec *= 2
 
