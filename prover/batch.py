@@ -410,7 +410,7 @@ def run_on_dask(function, tasks: list[tuple], limit: float, scheduler: str, on_r
     be killed there: when no result arrives for ``limit`` seconds, the outstanding tasks
     are cancelled and reported as ``('lost', reason)``."""
     try:
-        from distributed import Client, wait
+        from distributed import Client, as_completed
     except ImportError:
         raise InputError("the dask executor needs the optional extra: "
                          "pip install 'tessella[cluster]'", "--executor dask") from None
@@ -425,12 +425,10 @@ def run_on_dask(function, tasks: list[tuple], limit: float, scheduler: str, on_r
         futures = client.map(function, *zip(*tasks), pure=False)
         owner = dict(zip((f.key for f in futures), tasks))
         pending = set(futures)
+        arrivals = as_completed(futures)
         last = time.monotonic()
         while pending:
-            try:
-                done, pending = wait(pending, timeout=1.0, return_when="FIRST_COMPLETED")
-            except TimeoutError:
-                done = set()
+            done = arrivals.next_batch(block=False)
             for future in done:
                 if future.status == "finished":
                     outcome = ("ok", future.result())
@@ -439,14 +437,18 @@ def run_on_dask(function, tasks: list[tuple], limit: float, scheduler: str, on_r
                     outcome = ("error", f"{type(err).__name__}: {err}")
                 else:
                     outcome = ("lost", f"the cluster reported the task {future.status}")
+                pending.discard(future)
                 on_result(owner[future.key], outcome)
                 last = time.monotonic()
-            if pending and time.monotonic() - last > limit:
+            if not done and pending and time.monotonic() - last > limit:
+                arrivals.clear()
                 client.cancel(list(pending))
                 for future in sorted(pending, key=lambda f: owner[f.key][0]):
                     on_result(owner[future.key], (
                         "lost", f"no result from the cluster within {limit:g} s"))
                 pending = set()
+            elif not done:
+                time.sleep(0.02)
 
 
 # ---------------------------------------------------------------- progress and summary
@@ -512,7 +514,8 @@ def summary_text(records: list[dict], wall: float, options: Options) -> str:
     if unchanged:
         lines.append(f"unchanged: {unchanged} (skipped, recorded outcome kept)")
     work = sum((r["prove_seconds"] or 0) + (r["check_seconds"] or 0) for r in records)
-    workers = "Dask cluster" if options.executor == "dask" else f"{options.jobs} workers"
+    workers = ("Dask cluster" if options.executor == "dask"
+               else f"{options.jobs} worker" + ("s" if options.jobs > 1 else ""))
     lines.append(f"{len(records)} problems: {outcomes['pass']} passed, {outcomes['fail']} failed,"
                  f" {outcomes['skip']} skipped (unknown); {wall:.1f} s wall on {workers},"
                  f" {work:.1f} s of work, {len(records) / max(wall, 1e-9):.2f} problems/s")

@@ -12,6 +12,8 @@ Every answer is exact: a model is re-evaluated against the whole formula before
 """
 from __future__ import annotations
 
+import signal
+import threading
 import time
 from collections.abc import Callable
 from dataclasses import dataclass, field
@@ -44,6 +46,31 @@ class ProveResult:
     stats: dict = field(default_factory=dict)
 
 
+class _HardDeadline:
+    """Interrupt a long kernel computation at the deadline (SIGALRM raises TimeLimit).
+
+    The search checks the deadline between steps; this catches the steps that run long in
+    Python code.  Signals exist only in the main thread: elsewhere (e.g. a Dask worker thread)
+    the cooperative checks alone apply.
+    """
+
+    def __init__(self, timeout: float | None):
+        self.armed = (timeout is not None and
+                      threading.current_thread() is threading.main_thread())
+        if self.armed:
+            self.previous = signal.signal(signal.SIGALRM, self._expire)
+            signal.setitimer(signal.ITIMER_REAL, max(timeout, 0) + 0.5)
+
+    @staticmethod
+    def _expire(signum, frame):
+        raise TimeLimit()
+
+    def cancel(self) -> None:
+        if self.armed:
+            signal.setitimer(signal.ITIMER_REAL, 0)
+            signal.signal(signal.SIGALRM, self.previous)
+
+
 def unit_equations(problem: Problem) -> list:
     """Polynomials that every model must zero: the top-level unit clauses ``p = 0``."""
     cf = clausal_form(problem)
@@ -57,6 +84,7 @@ def prove(problem: Problem, timeout: float | None = None,
     started = time.monotonic()
     deadline = started + timeout if timeout is not None else None
     result = ProveResult("unknown")
+    alarm = _HardDeadline(timeout)
     try:
         order = choose_order([a.poly for a in problem.atoms()], len(problem.variables),
                              unit_equations(problem))
@@ -79,6 +107,8 @@ def prove(problem: Problem, timeout: float | None = None,
         result = ProveResult("unknown", "internal error: recursion too deep")
     except Exception as err:  # never a guess: any inconsistency is an unknown with its reason
         result = ProveResult("unknown", f"internal error: {type(err).__name__}: {err}")
+    finally:
+        alarm.cancel()
     result.stats["time"] = time.monotonic() - started
     return result
 
