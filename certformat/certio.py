@@ -16,7 +16,7 @@ from lark.exceptions import LarkError, UnexpectedInput, VisitError
 
 from .certificate import (NEG_INF, POS_INF, AtomClaim, Certificate, Inference, Interval,
                           Lemma, Literal, Node, Number, Poly, Root, Segment, VarDecl)
-from .errors import InputError
+from .errors import InputError, read_limited
 
 _PARSER = Lark.open(str(Path(__file__).with_name("certificate.lark")), parser="lalr",
                     propagate_positions=True, maybe_placeholders=False)
@@ -207,14 +207,11 @@ def _build(statements, path: str) -> Certificate:
 
 def load_certificate(path: str, max_bytes: int = MAX_CERTIFICATE_BYTES) -> Certificate:
     """Read a certificate file (UTF-8, at most ``max_bytes``)."""
-    p = Path(path)
-    try:
-        size = p.stat().st_size
-        if size > max_bytes:
-            raise InputError(f"certificate is {size} bytes, over the limit of {max_bytes}", path)
-        data = p.read_bytes()
-    except OSError as err:
-        raise InputError(f"cannot read certificate: {err.strerror}", path) from None
+    return parse_certificate_bytes(read_limited(path, max_bytes, "certificate"), path)
+
+
+def parse_certificate_bytes(data: bytes, path: str) -> Certificate:
+    """A certificate from the exact bytes of its file (UTF-8)."""
     try:
         text = data.decode("utf-8")
     except UnicodeDecodeError as err:

@@ -26,3 +26,15 @@ class InputError(Exception):
             if self.column is not None:
                 where += f":{self.column}"
         return f"{where}: {self.message}"
+
+
+def read_limited(path, limit: int, what: str) -> bytes:
+    """The bytes of the file ``path``: InputError when unreadable or larger than ``limit``."""
+    try:
+        with open(path, "rb") as f:
+            data = f.read(limit + 1)
+    except OSError as err:
+        raise InputError(f"cannot read {what}: {err.strerror or err}", str(path)) from None
+    if len(data) > limit:
+        raise InputError(f"{what} larger than {limit} bytes (over the limit)", str(path))
+    return data

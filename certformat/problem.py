@@ -9,7 +9,7 @@ from __future__ import annotations
 import hashlib
 from pathlib import Path
 
-from .errors import InputError
+from .errors import InputError, read_limited
 from .formula import Problem, formula_depth
 from .native import parse_native
 from .smtlib import parse_smtlib
@@ -22,12 +22,7 @@ MAX_FORMULA_DEPTH = 200
 
 def load_problem(path) -> Problem:
     """The problem in the file ``path``."""
-    try:
-        with open(path, "rb") as f:
-            data = f.read(MAX_FILE_BYTES + 1)
-    except OSError as err:
-        raise InputError(f"cannot read the file: {err.strerror or err}", str(path)) from None
-    return parse_problem_bytes(data, str(path))
+    return parse_problem_bytes(read_limited(path, MAX_FILE_BYTES, "the file"), str(path))
 
 
 def parse_problem_bytes(data: bytes, path: str = "<input>") -> Problem:

@@ -50,7 +50,7 @@ from collections import Counter
 from dataclasses import dataclass
 from pathlib import Path
 
-from certformat.errors import InputError
+from certformat.errors import InputError, read_limited
 from certformat.terms import MAX_FILE_BYTES
 
 from .pool import run_all
@@ -246,7 +246,7 @@ def run_batch(jobs: list[Job], options: Options, on_record=None) -> list[dict]:
     for i, job in enumerate(jobs):
         record = blank_record(job)
         try:
-            data = _read(job.problem, MAX_FILE_BYTES)
+            data = read_limited(job.problem, MAX_FILE_BYTES, "the file")
         except InputError as err:
             record.update(answer="error", reason=_one_line(str(err)))
             finish(i, record)
@@ -254,7 +254,7 @@ def run_batch(jobs: list[Job], options: Options, on_record=None) -> list[dict]:
         cert_data = None
         if os.path.exists(job.certificate):
             try:
-                cert_data = _read(job.certificate, MAX_CERTIFICATE_BYTES)
+                cert_data = read_limited(job.certificate, MAX_CERTIFICATE_BYTES, "certificate")
             except InputError as err:
                 if options.mode == CHECK_ONLY:
                     record.update(answer="error", reason=_one_line(str(err)),
@@ -379,17 +379,6 @@ def _save_state(root: str, records: dict) -> None:
         os.replace(tmp, path)
     except OSError as err:
         print(f"tessella: warning: cannot save the batch state: {err}", file=sys.stderr)
-
-
-def _read(path: str, limit: int) -> bytes:
-    try:
-        with open(path, "rb") as f:
-            data = f.read(limit + 1)
-    except OSError as err:
-        raise InputError(f"cannot read the file: {err.strerror or err}", path) from None
-    if len(data) > limit:
-        raise InputError(f"file larger than {limit} bytes", path)
-    return data
 
 
 def _write(path: str, text: str) -> None:

@@ -22,8 +22,8 @@ import json
 import platform
 from pathlib import Path
 
-from certformat.certio import MAX_CERTIFICATE_BYTES, number_text, read_certificate
-from certformat.errors import InputError
+from certformat.certio import MAX_CERTIFICATE_BYTES, number_text, parse_certificate_bytes
+from certformat.errors import InputError, read_limited
 from certformat.problem import load_problem
 
 TRUSTED = ("checker", "certformat")
@@ -129,18 +129,8 @@ def _prove_into(problem, out: Path, timeout) -> tuple[str | None, str]:
 
 def _load_certificate(path: str):
     """The certificate and the very bytes it was parsed from (the report hashes what it checked)."""
-    try:
-        with open(path, "rb") as f:
-            data = f.read(MAX_CERTIFICATE_BYTES + 1)
-    except OSError as err:
-        raise InputError(f"cannot read certificate: {err.strerror or err}", path) from None
-    if len(data) > MAX_CERTIFICATE_BYTES:
-        raise InputError(f"certificate over the limit of {MAX_CERTIFICATE_BYTES} bytes", path)
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError as err:
-        raise InputError(f"certificate is not UTF-8 text (byte {err.start})", path) from None
-    return read_certificate(text, path), data
+    data = read_limited(path, MAX_CERTIFICATE_BYTES, "certificate")
+    return parse_certificate_bytes(data, path), data
 
 
 def _write(path: Path, content) -> None:
