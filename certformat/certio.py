@@ -1,92 +1,124 @@
-"""Reading and writing certificates (SPEC.md) with exact round trip.
+"""Reading certificates (SPEC.md); the writer is :mod:`prover.certwrite`.
 
-``read_certificate`` parses with the lark grammar ``certificate.lark`` and
-checks only the structure (header first, ids declared once, segments under a
-node); whether the claims hold is the checker's business.  ``write_certificate``
-prints the canonical text: the same model always gives the same bytes.
+``read_certificate`` reads one statement per line by the grammar of SPEC.md
+§11 (a plain recursive-descent reader: each statement is one small function)
+and checks only the structure (header first, ids declared once, segments under
+a node); whether the claims hold is the checker's business.
 """
 from __future__ import annotations
 
 import json
+import re
 from fractions import Fraction
-from pathlib import Path
-
-from lark import Lark, Token, Transformer, v_args
-from lark.exceptions import LarkError, UnexpectedInput, VisitError
 
 from .certificate import (NEG_INF, POS_INF, AtomClaim, Certificate, Inference, Interval,
                           Lemma, Literal, Node, Number, Poly, Root, Segment, VarDecl)
 from .errors import InputError, read_limited
-
-_PARSER = Lark.open(str(Path(__file__).with_name("certificate.lark")), parser="lalr",
-                    propagate_positions=True, maybe_placeholders=False)
 
 MAX_CERTIFICATE_BYTES = 256 * 1024 * 1024
 
 
 # ---------------------------------------------------------------- reading
 
-@v_args(inline=True)
-class _Statements(Transformer):
-    """One small method per statement kind; each returns (kind, line, payload)."""
-
-    def rational(self, *toks):
-        sign = -1 if toks and toks[0].type == "SIGN" and toks[0] == "-" else 1
-        nums = [int(t) for t in toks if t.type == "INT"]
-        if len(nums) == 2 and nums[1] == 0:
-            raise ValueError("zero denominator")
-        return sign * Fraction(nums[0], nums[1] if len(nums) == 2 else 1)
-
-    def power(self, var, exp=None):
-        return (str(var), int(exp) if exp is not None else 1)
-
-    def monomial(self, *items):
-        coeff, powers = 1, []
-        for it in items:
-            if isinstance(it, Token):
-                coeff = int(it)
-            else:
-                powers.append(it)
-        return coeff, powers
-
-    def term(self, *items):
-        sign = -1 if len(items) == 2 and items[0] == "-" else 1
-        coeff, powers = items[-1]
-        return sign * coeff, powers
-
-    def polynomial(self, *items):
-        terms, sign = [], 1
-        for it in items:
-            if isinstance(it, Token):
-                sign = -1 if it == "-" else 1
-            else:
-                terms.append((sign * it[0], it[1]))
-                sign = 1
-        return terms
-
-    def literal(self, *toks):
-        return Literal(str(toks[-1]), positive=len(toks) == 1)
-
-    def bound(self, tok):
-        if tok.type == "ROOT":
-            pid, j = str(tok).split("#")
-            return Root(pid, int(j))
-        return str(tok)
-
-    def open_interval(self, low, high):
-        return Interval(low, high, point=False)
-
-    def point_interval(self, b):
-        return Interval(b, b, point=True)
-
-    def by(self, lit):
-        return ("by", lit)
-
-    def lift(self, cid, *pids):
-        return ("lift", str(cid), tuple(str(p) for p in pids))
+_TOKEN = re.compile(r'("(?:[^"\\\n]|\\["\\/bfnrtu])*")|([-+]inf\b)|(<=|>=|!=|<|>|=)'
+                    r'|([A-Za-z0-9]+(?:#[0-9]+)?)|([-+*^/@(),\[\]~])|(%.*)|([^ \t])')
+"""Tokens: a string, an infinity, a relation, a word, a mark; then a comment; then any other
+character, which is an error."""
+_PATTERNS = {kind: re.compile(pattern) for kind, pattern in {
+    "INT": "[0-9]+", "VAR": "x[0-9]+", "PID": "p[0-9]+", "NID": "n[0-9]+", "LID": "L[0-9]+",
+    "CID": "c[0-9]+", "ROOT": "p[0-9]+#[0-9]+", "HEX": "[0-9a-f]{64}", "KIND": "unsat|sat",
+    "BOOL": "true|false", "ATOM": "a[0-9]+", "LIT": "[abd][0-9]+", "REL": "<=|>=|!=|<|>|=",
+    "STRING": '".*"'}.items()}
 
 
-def _monomials_to_poly(terms, nvars: int, path: str, line: int) -> Poly:
+class _Line:
+    """The tokens of one statement line, read left to right (grammar: SPEC.md §11)."""
+
+    def __init__(self, text: str, path: str, line: int):
+        self.path, self.line, self.text, self.i = path, line, text, 0
+        self.tokens: list[tuple[int, str]] = []
+        for m in _TOKEN.finditer(text):
+            if m.lastindex == 6:
+                break
+            if m.lastindex == 7:
+                raise self.error(f"unexpected character {m.group()!r}", m.start())
+            self.tokens.append((m.start(), m.group()))
+
+    def error(self, message: str, column: int | None = None) -> InputError:
+        if column is None:
+            column = self.tokens[self.i][0] if self.i < len(self.tokens) else len(self.text)
+        snippet = self.text.strip()[:60]
+        return InputError(f"certificate syntax error: {message} in {snippet!r}", self.path,
+                          self.line, column + 1, construct=snippet)
+
+    def peek(self) -> str | None:
+        return self.tokens[self.i][1] if self.i < len(self.tokens) else None
+
+    def takes(self, want: str) -> str | None:
+        """The next token if it is ``want`` (or matches the pattern so named), else None."""
+        tok = self.peek()
+        pattern = _PATTERNS.get(want)
+        if tok is None or (tok != want if pattern is None else not pattern.fullmatch(tok)):
+            return None
+        self.i += 1
+        return tok
+
+    def take(self, want: str) -> str:
+        """The next token, which must be ``want`` (or match the pattern so named)."""
+        tok = self.takes(want)
+        if tok is None:
+            raise self.error(f"expected {want}, found {self.peek() or 'end of line'!r}")
+        return tok
+
+    def take_all(self, want: str) -> list[str]:
+        """Every remaining token, each ``want``."""
+        out = []
+        while self.peek() is not None:
+            out.append(self.take(want))
+        return out
+
+    def end(self) -> None:
+        if self.peek() is not None:
+            raise self.error(f"unexpected {self.peek()!r}")
+
+
+def _rational(ln: _Line) -> Fraction:
+    """``("+" | "-")? INT ("/" INT)?``"""
+    sign = -1 if ln.takes("-") else 1
+    if sign == 1:
+        ln.takes("+")
+    num = int(ln.take("INT"))
+    den = int(ln.take("INT")) if ln.takes("/") else 1
+    if den == 0:
+        raise ln.error("zero denominator")
+    return sign * Fraction(num, den)
+
+
+def _power(ln: _Line) -> tuple[str, int]:
+    """``(VAR | "z") ("^" INT)?``"""
+    var = ln.takes("z") or ln.take("VAR")
+    return var, int(ln.take("INT")) if ln.takes("^") else 1
+
+
+def _polynomial(ln: _Line) -> list[tuple[int, list[tuple[str, int]]]]:
+    """``term (("+" | "-") term)*``, ``term = ("+" | "-")? (INT | power) ("*" power)*``."""
+    terms, sign = [], 1
+    while True:
+        if ln.takes("-"):
+            sign = -sign
+        else:
+            ln.takes("+")
+        coeff = ln.takes("INT")
+        powers = [] if coeff is not None else [_power(ln)]
+        while ln.takes("*"):
+            powers.append(_power(ln))
+        terms.append((sign * int(coeff or 1), powers))
+        if ln.peek() not in ("+", "-"):
+            return terms
+        sign = -1 if ln.take(ln.peek()) == "-" else 1
+
+
+def _monomials_to_poly(terms, nvars: int, ln: _Line) -> Poly:
     """Sum the terms of a polynomial in x1 … xn into an exponent dictionary."""
     poly: Poly = {}
     for coeff, powers in terms:
@@ -94,114 +126,199 @@ def _monomials_to_poly(terms, nvars: int, path: str, line: int) -> Poly:
         for var, e in powers:
             k = int(var[1:]) if var != "z" else 0
             if var == "z" or not 1 <= k <= nvars:
-                raise InputError(f"variable {var} is not declared", path, line, construct=var)
+                raise InputError(f"variable {var} is not declared", ln.path, ln.line, construct=var)
             exps[k - 1] += e
         key = tuple(exps)
         poly[key] = poly.get(key, 0) + coeff
     return {e: c for e, c in poly.items() if c != 0}
 
 
-def _univariate(terms, path: str, line: int) -> tuple[int, ...]:
+def _univariate(terms, ln: _Line) -> tuple[int, ...]:
     """Coefficients (constant first) of a polynomial in z."""
     coeffs: dict[int, int] = {}
     for coeff, powers in terms:
         e = 0
         for var, k in powers:
             if var != "z":
-                raise InputError(f"number polynomial uses {var}; only z is allowed", path, line,
-                                 construct=var)
+                raise InputError(f"number polynomial uses {var}; only z is allowed", ln.path,
+                                 ln.line, construct=var)
             e += k
         coeffs[e] = coeffs.get(e, 0) + coeff
     top = max((e for e, c in coeffs.items() if c), default=-1)
     return tuple(coeffs.get(e, 0) for e in range(top + 1))
 
 
-def read_certificate(text: str, path: str = "<certificate>") -> Certificate:
-    """Parse certificate text into the data model; InputError names the line."""
+def _literal(ln: _Line) -> Literal:
+    """``"~"? (aK | bK | dK)``"""
+    negated = ln.takes("~") is not None
+    return Literal(ln.take("LIT"), positive=not negated)
+
+
+def _bound(ln: _Line):
+    """``-inf | +inf | pK#J``"""
+    tok = ln.takes(NEG_INF) or ln.takes(POS_INF)
+    if tok:
+        return tok
+    pid, j = ln.take("ROOT").split("#")
+    return Root(pid, int(j))
+
+
+def _interval(ln: _Line) -> Interval:
+    """``"(" bound "," bound ")"`` (open) or ``"[" bound "]"`` (a point)."""
+    if ln.takes("["):
+        b = _bound(ln)
+        ln.take("]")
+        return Interval(b, b, point=True)
+    ln.take("(")
+    low = _bound(ln)
+    ln.take(",")
+    high = _bound(ln)
+    ln.take(")")
+    return Interval(low, high, point=False)
+
+
+def _declare(cert: Certificate, ln: _Line, ident: str) -> str:
+    if ident in cert.lines:
+        raise InputError(f"{ident} is declared twice (first on line {cert.lines[ident]})",
+                         ln.path, ln.line, construct=ident)
+    cert.lines[ident] = ln.line
+    return ident
+
+
+def _problem_hash(cert: Certificate, ln: _Line) -> None:
+    ln.take("sha256")
+    cert.sha256 = ln.take("HEX")
+
+
+def _var(cert: Certificate, ln: _Line) -> None:
+    ident = _declare(cert, ln, ln.take("VAR"))
+    ln.take("=")
+    index = int(ln.take("INT"))
     try:
-        tree = _PARSER.parse(text)
-    except UnexpectedInput as err:
-        snippet = text.splitlines()[err.line - 1].strip()[:60] if err.line and err.line > 0 else ""
-        raise InputError(f"certificate syntax error near {snippet!r}", path, err.line,
-                         err.column, construct=snippet) from None
-    except LarkError as err:
-        raise InputError(f"certificate syntax error: {err}", path) from None
-    statements = tree.children
-    if not statements or statements[0].data != "header":
+        name = json.loads(ln.take("STRING"))
+    except ValueError:
+        raise ln.error("bad escape in the variable name", ln.tokens[ln.i - 1][0]) from None
+    cert.variables.append(VarDecl(int(ident[1:]), index, name, ln.line))
+
+
+def _poly(cert: Certificate, ln: _Line) -> None:
+    ident = _declare(cert, ln, ln.take("PID"))
+    ln.take("=")
+    cert.polys[ident] = _monomials_to_poly(_polynomial(ln), len(cert.variables), ln)
+
+
+def _num(cert: Certificate, ln: _Line) -> None:
+    ident = _declare(cert, ln, ln.take("NID"))
+    ln.take("=")
+    if "@" not in (tok for _, tok in ln.tokens):
+        q = _rational(ln)
+        cert.numbers[ident] = Number(None, q, q, ln.line)
+        return
+    poly = _univariate(_polynomial(ln), ln)
+    ln.take("@")
+    ln.take("(")
+    low = _rational(ln)
+    ln.take(",")
+    high = _rational(ln)
+    ln.take(")")
+    cert.numbers[ident] = Number(poly, low, high, ln.line)
+
+
+def _atom(cert: Certificate, ln: _Line) -> None:
+    ident = _declare(cert, ln, ln.take("ATOM"))
+    ln.take("=")
+    pid, rel = ln.take("PID"), ln.take("REL")
+    ln.take("0")
+    cert.atoms[ident] = AtomClaim(pid, rel, ln.line)
+
+
+def _lemma(cert: Certificate, ln: _Line) -> None:
+    ident = _declare(cert, ln, ln.take("LID"))
+    ln.take("excludes")
+    literals = [_literal(ln)]
+    while not ln.takes("by"):
+        literals.append(_literal(ln))
+    cert.lemmas.append(Lemma(ident, tuple(literals), ln.take("CID"), ln.line))
+
+
+def _node(cert: Certificate, ln: _Line) -> None:
+    ident = _declare(cert, ln, ln.take("CID"))
+    ln.take("sample")
+    sample = () if ln.takes("-") else (ln.take("NID"), *ln.take_all("NID"))
+    cert.nodes[ident] = Node(ident, sample, [], ln.line)
+
+
+def _seg(cert: Certificate, ln: _Line) -> None:
+    if not cert.nodes:
+        raise InputError("'seg' before any 'node'", ln.path, ln.line, construct="seg")
+    interval = _interval(ln)
+    ln.take("at")
+    seg = Segment(interval, ln.take("NID"), line=ln.line)
+    if ln.takes("by"):
+        seg.literal = _literal(ln)
+    else:
+        ln.take("lift")
+        seg.child = ln.take("CID")
+        ln.take("keep")
+        seg.keep = tuple(ln.take_all("PID"))
+    next(reversed(cert.nodes.values())).segments.append(seg)
+
+
+def _core(cert: Certificate, ln: _Line) -> None:
+    cert.core = tuple(int(k) for k in ln.take_all("INT"))
+
+
+def _infer(cert: Certificate, ln: _Line) -> None:
+    literals = []
+    if not ln.takes("false"):
+        literals.append(_literal(ln))
+        while ln.peek() is not None:
+            literals.append(_literal(ln))
+    cert.steps.append(Inference(tuple(literals), ln.line))
+
+
+def _value(cert: Certificate, ln: _Line) -> None:
+    var = ln.take("VAR")
+    cert.values[var] = ln.take("NID")
+
+
+def _bool(cert: Certificate, ln: _Line) -> None:
+    index = int(ln.take("INT"))
+    cert.bools[index] = ln.take("BOOL") == "true"
+
+
+_STATEMENTS = {"problem": _problem_hash, "var": _var, "poly": _poly, "num": _num,
+               "atom": _atom, "lemma": _lemma, "node": _node, "seg": _seg, "core": _core,
+               "infer": _infer, "value": _value, "bool": _bool}
+
+
+def read_certificate(text: str, path: str = "<certificate>") -> Certificate:
+    """Parse certificate text into the data model, one statement per line; InputError names
+    the line and column.  Ids must be declared once; whether claims hold is the checker's job."""
+    cert = None
+    for number, raw in enumerate(text.split("\n"), 1):
+        ln = _Line(raw[:-1] if raw.endswith("\r") else raw, path, number)
+        if not ln.tokens:
+            continue
+        keyword = ln.tokens[0][1]
+        ln.i = 1
+        if cert is None:
+            if keyword != "tessella":
+                raise InputError("certificate must start with 'tessella 1 unsat|sat'", path,
+                                 number, 1, construct=keyword)
+            version, kind = int(ln.take("INT")), ln.take("KIND")
+            ln.end()
+            if version != 1:
+                raise InputError(f"unsupported certificate version {version} (this checker "
+                                 "reads 1)", path, number)
+            cert = Certificate(kind=kind, sha256="", variables=[], version=version)
+            continue
+        if keyword not in _STATEMENTS:
+            raise ln.error(f"unknown statement {keyword!r}", ln.tokens[0][0])
+        _STATEMENTS[keyword](cert, ln)
+        ln.end()
+    if cert is None:
         raise InputError("certificate must start with 'tessella 1 unsat|sat'", path, 1)
-    return _build(statements, path)
-
-
-def _build(statements, path: str) -> Certificate:
-    """Assemble statements into a Certificate, checking ids are declared once."""
-    transform = _Statements()
-    version, kind = int(statements[0].children[0]), str(statements[0].children[1])
-    if version != 1:
-        raise InputError(f"unsupported certificate version {version} (this checker reads 1)",
-                         path, statements[0].meta.line)
-    cert = Certificate(kind=kind, sha256="", variables=[], version=version)
-    current: Node | None = None
-    for st in statements[1:]:
-        line = st.meta.line
-        try:
-            kids = [transform.transform(c) if not isinstance(c, Token) else c
-                    for c in st.children]
-        except VisitError as err:
-            raise InputError(f"bad value: {err.orig_exc}", path, line) from None
-
-        def declare(ident: str):
-            if ident in cert.lines:
-                raise InputError(f"{ident} is declared twice (first on line {cert.lines[ident]})",
-                                 path, line, construct=ident)
-            cert.lines[ident] = line
-
-        kind_ = st.data
-        if kind_ == "header":
-            raise InputError("a second header line", path, line, construct="tessella")
-        elif kind_ == "problem_hash":
-            cert.sha256 = str(kids[0])
-        elif kind_ == "var":
-            declare(str(kids[0]))
-            name = json.loads(str(kids[2]))
-            cert.variables.append(VarDecl(int(str(kids[0])[1:]), int(kids[1]), name, line))
-        elif kind_ == "poly":
-            declare(str(kids[0]))
-            cert.polys[str(kids[0])] = _monomials_to_poly(kids[1], len(cert.variables), path, line)
-        elif kind_ == "num":
-            declare(str(kids[0]))
-            if len(kids) == 2:
-                cert.numbers[str(kids[0])] = Number(None, kids[1], kids[1], line)
-            else:
-                poly = _univariate(kids[1], path, line)
-                cert.numbers[str(kids[0])] = Number(poly, kids[2], kids[3], line)
-        elif kind_ == "atom":
-            declare(str(kids[0]))
-            cert.atoms[str(kids[0])] = AtomClaim(str(kids[1]), str(kids[2]), line)
-        elif kind_ == "lemma":
-            declare(str(kids[0]))
-            cert.lemmas.append(Lemma(str(kids[0]), tuple(kids[1:-1]), str(kids[-1]), line))
-        elif kind_ == "node":
-            declare(str(kids[0]))
-            current = Node(str(kids[0]), tuple(str(k) for k in kids[1:]), [], line)
-            cert.nodes[current.id] = current
-        elif kind_ == "seg":
-            if current is None:
-                raise InputError("'seg' before any 'node'", path, line, construct="seg")
-            interval, sample, (how, *rest) = kids
-            seg = Segment(interval, str(sample), line=line)
-            if how == "by":
-                seg.literal = rest[0]
-            else:
-                seg.child, seg.keep = rest
-            current.segments.append(seg)
-        elif kind_ == "core":
-            cert.core = tuple(int(k) for k in kids)
-        elif kind_ == "infer":
-            cert.steps.append(Inference(tuple(kids), line))
-        elif kind_ == "value":
-            cert.values[str(kids[0])] = str(kids[1])
-        elif kind_ == "boolval":
-            cert.bools[int(kids[0])] = str(kids[1]) == "true"
     return cert
 
 
@@ -217,72 +334,3 @@ def parse_certificate_bytes(data: bytes, path: str) -> Certificate:
     except UnicodeDecodeError as err:
         raise InputError(f"certificate is not UTF-8 text (byte {err.start})", path) from None
     return read_certificate(text, path)
-
-
-# ---------------------------------------------------------------- writing
-
-def poly_text(poly: Poly, var=lambda k: f"x{k + 1}") -> str:
-    """Canonical text of a polynomial: terms in descending lex order of exponents."""
-    if not poly:
-        return "0"
-    out = []
-    for exps in sorted(poly, reverse=True):
-        c = poly[exps]
-        powers = [var(k) + (f"^{e}" if e > 1 else "") for k, e in enumerate(exps) if e]
-        mag = abs(c)
-        body = "*".join(([str(mag)] if mag != 1 or not powers else []) + powers)
-        out.append(("- " if c < 0 else "+ ") + body)
-    text = " ".join(out)
-    return text[2:] if text.startswith("+ ") else "-" + text[2:]
-
-
-def rational_text(q: Fraction) -> str:
-    """``p/q`` in lowest terms, or ``p`` for an integer."""
-    q = Fraction(q)
-    return str(q.numerator) if q.denominator == 1 else f"{q.numerator}/{q.denominator}"
-
-
-def number_text(num: Number) -> str:
-    """Right-hand side of a ``num`` line."""
-    if num.poly is None:
-        return rational_text(num.low)
-    uni = {(e,): c for e, c in enumerate(num.poly) if c}
-    return f"{poly_text(uni, lambda k: 'z')} @ ({rational_text(num.low)}, {rational_text(num.high)})"
-
-
-def _segment_text(seg: Segment) -> str:
-    head = f"  seg {seg.interval} at {seg.sample}"
-    if seg.literal is not None:
-        return f"{head} by {seg.literal}"
-    return f"{head} lift {seg.child} keep" + "".join(" " + p for p in seg.keep)
-
-
-def _node_lines(cert: Certificate, root: str):
-    """The nodes of one lemma in pre-order."""
-    stack = [root]
-    while stack:
-        node = cert.nodes[stack.pop()]
-        yield f"node {node.id} sample " + (" ".join(node.sample) if node.sample else "-")
-        for seg in node.segments:
-            yield _segment_text(seg)
-        stack.extend(reversed([s.child for s in node.segments if s.child]))
-
-
-def write_certificate(cert: Certificate) -> str:
-    """The canonical text of a certificate (SPEC.md); deterministic."""
-    lines = [f"tessella {cert.version} {cert.kind}", f"problem sha256 {cert.sha256}"]
-    lines += [f"var x{v.index} = {v.problem_index} {json.dumps(v.name)}" for v in cert.variables]
-    lines += [f"poly {pid} = {poly_text(p)}" for pid, p in cert.polys.items()]
-    lines += [f"num {nid} = {number_text(n)}" for nid, n in cert.numbers.items()]
-    lines += [f"atom {aid} = {a.poly} {a.rel} 0" for aid, a in cert.atoms.items()]
-    for lemma in cert.lemmas:
-        lits = " ".join(str(l) for l in lemma.literals)
-        lines.append(f"lemma {lemma.id} excludes {lits} by {lemma.root}")
-        lines.extend(_node_lines(cert, lemma.root))
-    if cert.kind == "unsat":
-        lines.append("core" + "".join(f" {i}" for i in cert.core))
-    for step in cert.steps:
-        lines.append("infer " + (" ".join(str(l) for l in step.literals) or "false"))
-    lines += [f"value {x} {n}" for x, n in cert.values.items()]
-    lines += [f"bool {j} {'true' if v else 'false'}" for j, v in sorted(cert.bools.items())]
-    return "\n".join(lines) + "\n"

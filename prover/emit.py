@@ -14,7 +14,7 @@ from flint import fmpq, fmpz, fmpz_mpoly
 from certformat.certificate import (NEG_INF, POS_INF, AtomClaim, Certificate, Inference,
                                     Interval as CertInterval, Lemma, Literal as CertLiteral,
                                     Node as CertNode, Number, Root, Segment, VarDecl)
-from certformat.certio import write_certificate
+from .certwrite import write_certificate
 from certformat.formula import Atom, Problem
 
 from .characterize import PolyStore

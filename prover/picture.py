@@ -22,7 +22,7 @@ import math
 from fractions import Fraction
 
 from certformat.certificate import NEG_INF, POS_INF, Certificate, Literal, Node, Root
-from certformat.certio import poly_text
+from .certwrite import poly_text
 from certformat.formula import NEGATED
 
 MAX_PANELS = 4

@@ -22,9 +22,11 @@ import json
 import platform
 from pathlib import Path
 
-from certformat.certio import MAX_CERTIFICATE_BYTES, number_text, parse_certificate_bytes
+from certformat.certio import MAX_CERTIFICATE_BYTES, parse_certificate_bytes
 from certformat.errors import InputError, read_limited
 from certformat.problem import load_problem
+
+from .certwrite import number_text
 
 TRUSTED = ("checker", "certformat")
 TRUSTED_BUDGET = 2500

@@ -5,7 +5,8 @@ import pytest
 from hypothesis import given, settings, strategies as st
 
 from certformat.certificate import Certificate, Number, VarDecl
-from certformat.certio import read_certificate, write_certificate
+from certformat.certio import read_certificate
+from prover.certwrite import write_certificate
 from certformat.clauses import clausal_form
 from certformat.errors import InputError
 from certformat.formula import (And, Assertion, Iff, Not, Or, Problem, BoolVar, make_atom,

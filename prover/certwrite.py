@@ -1,0 +1,79 @@
+"""Writing certificates: the canonical text of SPEC.md, read back exactly by
+:func:`certformat.certio.read_certificate`.  The same model always gives the same bytes.
+
+The writer is not part of the trusted base: a wrong text can only make the
+checker reject.
+"""
+from __future__ import annotations
+
+import json
+from fractions import Fraction
+
+from certformat.certificate import Certificate, Number, Poly, Segment
+
+
+def poly_text(poly: Poly, var=lambda k: f"x{k + 1}") -> str:
+    """Canonical text of a polynomial: terms in descending lex order of exponents."""
+    if not poly:
+        return "0"
+    out = []
+    for exps in sorted(poly, reverse=True):
+        c = poly[exps]
+        powers = [var(k) + (f"^{e}" if e > 1 else "") for k, e in enumerate(exps) if e]
+        mag = abs(c)
+        body = "*".join(([str(mag)] if mag != 1 or not powers else []) + powers)
+        out.append(("- " if c < 0 else "+ ") + body)
+    text = " ".join(out)
+    return text[2:] if text.startswith("+ ") else "-" + text[2:]
+
+
+def rational_text(q: Fraction) -> str:
+    """``p/q`` in lowest terms, or ``p`` for an integer."""
+    q = Fraction(q)
+    return str(q.numerator) if q.denominator == 1 else f"{q.numerator}/{q.denominator}"
+
+
+def number_text(num: Number) -> str:
+    """Right-hand side of a ``num`` line."""
+    if num.poly is None:
+        return rational_text(num.low)
+    uni = {(e,): c for e, c in enumerate(num.poly) if c}
+    return f"{poly_text(uni, lambda k: 'z')} @ ({rational_text(num.low)}, {rational_text(num.high)})"
+
+
+def _segment_text(seg: Segment) -> str:
+    head = f"  seg {seg.interval} at {seg.sample}"
+    if seg.literal is not None:
+        return f"{head} by {seg.literal}"
+    return f"{head} lift {seg.child} keep" + "".join(" " + p for p in seg.keep)
+
+
+def _node_lines(cert: Certificate, root: str):
+    """The nodes of one lemma in pre-order."""
+    stack = [root]
+    while stack:
+        node = cert.nodes[stack.pop()]
+        yield f"node {node.id} sample " + (" ".join(node.sample) if node.sample else "-")
+        for seg in node.segments:
+            yield _segment_text(seg)
+        stack.extend(reversed([s.child for s in node.segments if s.child]))
+
+
+def write_certificate(cert: Certificate) -> str:
+    """The canonical text of a certificate (SPEC.md); deterministic."""
+    lines = [f"tessella {cert.version} {cert.kind}", f"problem sha256 {cert.sha256}"]
+    lines += [f"var x{v.index} = {v.problem_index} {json.dumps(v.name)}" for v in cert.variables]
+    lines += [f"poly {pid} = {poly_text(p)}" for pid, p in cert.polys.items()]
+    lines += [f"num {nid} = {number_text(n)}" for nid, n in cert.numbers.items()]
+    lines += [f"atom {aid} = {a.poly} {a.rel} 0" for aid, a in cert.atoms.items()]
+    for lemma in cert.lemmas:
+        lits = " ".join(str(l) for l in lemma.literals)
+        lines.append(f"lemma {lemma.id} excludes {lits} by {lemma.root}")
+        lines.extend(_node_lines(cert, lemma.root))
+    if cert.kind == "unsat":
+        lines.append("core" + "".join(f" {i}" for i in cert.core))
+    for step in cert.steps:
+        lines.append("infer " + (" ".join(str(l) for l in step.literals) or "false"))
+    lines += [f"value {x} {n}" for x, n in cert.values.items()]
+    lines += [f"bool {j} {'true' if v else 'false'}" for j, v in sorted(cert.bools.items())]
+    return "\n".join(lines) + "\n"
