@@ -101,10 +101,6 @@ class Node:
     segments: list[Segment] = field(default_factory=list)
     line: int = 0
 
-    @property
-    def level(self) -> int:
-        return len(self.sample) + 1
-
 
 @dataclass
 class Lemma:

@@ -32,7 +32,7 @@ _PATTERNS = {kind: re.compile(pattern) for kind, pattern in {
 
 
 class _Line:
-    """The tokens of one statement line, read left to right (grammar: SPEC.md §11)."""
+    """The tokens of one statement line, read left to right (grammar: SPEC.md §10)."""
 
     def __init__(self, text: str, path: str, line: int):
         self.path, self.line, self.text, self.i = path, line, text, 0
@@ -72,10 +72,11 @@ class _Line:
 
     def take_all(self, want: str) -> list[str]:
         """Every remaining token, each ``want``."""
-        out = []
-        while self.peek() is not None:
-            out.append(self.take(want))
-        return out
+        return [self.take(want) for _ in range(len(self.tokens) - self.i)]
+
+    def sign(self) -> int:
+        """An optional ``+`` or ``-``, as 1 or -1."""
+        return -1 if (self.takes("-") or self.takes("+")) == "-" else 1
 
     def end(self) -> None:
         if self.peek() is not None:
@@ -84,9 +85,7 @@ class _Line:
 
 def _rational(ln: _Line) -> Fraction:
     """``("+" | "-")? INT ("/" INT)?``"""
-    sign = -1 if ln.takes("-") else 1
-    if sign == 1:
-        ln.takes("+")
+    sign = ln.sign()
     num = int(ln.take("INT"))
     den = int(ln.take("INT")) if ln.takes("/") else 1
     if den == 0:
@@ -104,10 +103,7 @@ def _polynomial(ln: _Line) -> list[tuple[int, list[tuple[str, int]]]]:
     """``term (("+" | "-") term)*``, ``term = ("+" | "-")? (INT | power) ("*" power)*``."""
     terms, sign = [], 1
     while True:
-        if ln.takes("-"):
-            sign = -sign
-        else:
-            ln.takes("+")
+        sign *= ln.sign()
         coeff = ln.takes("INT")
         powers = [] if coeff is not None else [_power(ln)]
         while ln.takes("*"):

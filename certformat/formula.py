@@ -63,23 +63,15 @@ class Atom:
     poly: fmpz_mpoly
     rel: str
 
-    def key(self) -> tuple:
-        """A hashable identity: (sorted terms, relation)."""
-        return (tuple(sorted(self.poly.to_dict().items())), self.rel)
+    def __post_init__(self):
+        """A hashable identity, kept: (variable count, canonical text of the polynomial, relation)."""
+        object.__setattr__(self, "key", (self.poly.context().nvars(), str(self.poly), self.rel))
 
     def __eq__(self, other):
-        return isinstance(other, Atom) and self.key() == other.key()
+        return isinstance(other, Atom) and self.key == other.key
 
     def __hash__(self):
-        return hash(self.key())
-
-    def degree(self) -> int:
-        return self.poly.total_degree()
-
-    def variables(self) -> tuple[int, ...]:
-        """Indices of the variables that occur in the atom."""
-        degs = self.poly.degrees()
-        return tuple(i for i, d in enumerate(degs) if d > 0)
+        return hash(self.key)
 
 
 @dataclass(frozen=True)

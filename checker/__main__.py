@@ -16,14 +16,7 @@ from certformat.errors import InputError
 from certformat.problem import load_problem
 
 from .check import CHECKER_VERSION, Verdict, check
-from .limits import Limits
-
-
-def _parser() -> argparse.ArgumentParser:
-    ap = argparse.ArgumentParser(prog="python -m checker",
-                                 description="Replay a tessella certificate against its problem.")
-    add_arguments(ap)
-    return ap
+from .limits import Limits, Rejection
 
 
 def add_arguments(ap: argparse.ArgumentParser) -> None:
@@ -39,14 +32,6 @@ def add_arguments(ap: argparse.ArgumentParser) -> None:
     ap.add_argument("--max-bytes", type=int, default=Limits.max_bytes)
 
 
-class _OutOfTime(Exception):
-    pass
-
-
-def _alarm(signum, frame):
-    raise _OutOfTime()
-
-
 def run(args) -> int:
     """Check, print the verdict, return the exit code."""
     limits = Limits(max_bytes=args.max_bytes, max_degree=args.max_degree,
@@ -59,12 +44,16 @@ def run(args) -> int:
     except InputError as err:
         print(f"tessella: error: {err}", file=sys.stderr)
         return 2
-    old = signal.signal(signal.SIGALRM, _alarm)
+
+    def out_of_time(signum, frame):
+        raise Rejection("LIMITS", f"time limit of {args.max_seconds:g} s exceeded")
+
+    old = signal.signal(signal.SIGALRM, out_of_time)
     signal.setitimer(signal.ITIMER_REAL, args.max_seconds + 1.0)
     try:
         verdict = check(problem, cert, limits)
-    except _OutOfTime:
-        verdict = Verdict(False, cert.kind, "LIMITS", f"time limit of {args.max_seconds:g} s exceeded")
+    except Rejection as rej:
+        verdict = Verdict(False, cert.kind, rej.rule, rej.reason)
     except (MemoryError, RecursionError) as err:
         verdict = Verdict(False, cert.kind, "LIMITS", f"resource limit: {type(err).__name__}")
     finally:
@@ -90,7 +79,10 @@ def run(args) -> int:
 
 
 def main(argv=None) -> int:
-    return run(_parser().parse_args(argv))
+    ap = argparse.ArgumentParser(prog="python -m checker",
+                                 description="Replay a tessella certificate against its problem.")
+    add_arguments(ap)
+    return run(ap.parse_args(argv))
 
 
 if __name__ == "__main__":

@@ -21,12 +21,13 @@ Algorithms, each with the theorem it rests on:
 * **Bisection** -- a squarefree polynomial changes sign at each of its (simple)
   roots and nowhere else; with exactly one root in ``(low, high)`` the sign at
   the midpoint tells which half holds it (intermediate value theorem).
-* **Isolation** -- all real roots lie in ``(-B, B)`` with Cauchy's bound
+* **Isolation** -- a quadratic by its closed form (:func:`isolate_quadratic`).
+  Otherwise all real roots lie in ``(-B, B)`` with Cauchy's bound
   ``B = 1 + max_i |a_i / a_n|`` (Cauchy 1829).  Candidate intervals come from
-  Arb's complex root enclosures (a hint only); they are accepted when Sturm
-  counts show exactly one root in each, the intervals are disjoint, and their
-  number equals the Sturm count on ``(-B, B)`` -- then they hold every real
-  root.  Otherwise ``(-B, B)`` is split by Sturm counts until each interval
+  Arb's complex root enclosures (a hint only); they are accepted when ``g``
+  changes sign across each (so each holds a root), they are disjoint, and their
+  number equals the Sturm count on ``(-B, B)`` -- then each holds exactly one
+  and together they hold every real root.  Otherwise ``(-B, B)`` is split by Sturm counts until each interval
   holds one root.
 * **Equality** -- two irreducible primitive polynomials with a common root are
   equal up to sign (the minimal polynomial is unique), so two numbers are equal
@@ -78,7 +79,7 @@ class RealAlgebraic:
     def rational(q) -> RealAlgebraic:
         """The rational q = num/den, defined by den*x - num."""
         q = _to_fmpq(q)
-        return RealAlgebraic(fmpz_poly([-q.p, q.q]), q, q)
+        return RealAlgebraic(fmpz_poly([-q.p, q.q]), q, q, minimal=True)
 
     def __hash__(self):
         """Structural, like ``==`` (numeric equality is :func:`compare`)."""
@@ -211,6 +212,8 @@ def _same_number(a: RealAlgebraic, b: RealAlgebraic) -> bool:
 
 def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:
     """The exact sign of a - b: equality by minimal forms, otherwise bisect until the intervals are disjoint."""
+    if a.is_rational() and b.is_rational():
+        return _sign(a.low - b.low)
     a, b = reduced(a), reduced(b)
     if _same_number(a, b):
         return 0
@@ -224,10 +227,12 @@ def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:
 
 def isolate(g: fmpz_poly) -> list[RealAlgebraic]:
     """Isolating intervals for the real roots of g, irreducible of degree >= 2 (module docstring: Isolation)."""
+    if g.degree() == 2:
+        return isolate_quadratic(g)
     seq = sturm_sequence(fmpq_poly(g))
     bound = cauchy_bound(g)
     total = count_roots(seq, -bound, bound)
-    hinted = sorted(_hinted_intervals(g, seq, bound))
+    hinted = sorted(_hinted_intervals(g, bound))
     if len(hinted) == total and all(h <= l for (_, h), (l, _) in zip(hinted, hinted[1:])):
         return [RealAlgebraic(g, low, high, minimal=True) for low, high in hinted]
     pending, found = [(-bound, bound)], []
@@ -242,8 +247,24 @@ def isolate(g: fmpz_poly) -> list[RealAlgebraic]:
     return found
 
 
-def _hinted_intervals(g: fmpz_poly, seq, bound: fmpq) -> list[tuple[fmpq, fmpq]]:
-    """Rational intervals around Arb's real root enclosures that Sturm confirms hold one root each."""
+def isolate_quadratic(g: fmpz_poly) -> list[RealAlgebraic]:
+    """The roots (-b ± sqrt(D)) / 2a of irreducible g = a z^2 + b z + c, D = b^2 - 4ac: with s = isqrt(D 4^64),
+    s < sqrt(D) 2^64 < s + 1 (D is no square), so each lies strictly inside its interval below."""
+    c, b, a = g.coeffs()
+    disc = b * b - 4 * a * c
+    if disc < 0:
+        return []
+    s = (disc << 128).isqrt()
+    if disc.isqrt() ** 2 == disc:
+        raise KernelError(f"{g} is not irreducible")
+    ends = sorted(fmpq((-b << 64) + d, a << 65) for d in (-s - 1, -s, s, s + 1))
+    return [RealAlgebraic(g, ends[0], ends[1], minimal=True),
+            RealAlgebraic(g, ends[2], ends[3], minimal=True)]
+
+
+def _hinted_intervals(g: fmpz_poly, bound: fmpq) -> list[tuple[fmpq, fmpq]]:
+    """Rational intervals around Arb's real root enclosures where g changes sign, so each holds a root
+    (intermediate value theorem; with as many intervals as roots, disjoint, each holds exactly one)."""
     out = []
     for z, _ in g.complex_roots():
         if not z.imag == 0:
@@ -252,8 +273,7 @@ def _hinted_intervals(g: fmpz_poly, seq, bound: fmpq) -> list[tuple[fmpq, fmpq]]
         centre = fmpq(mid[0]) * fmpq(2) ** int(mid[1])
         radius = 2 * fmpq(rad[0]) * fmpq(2) ** int(rad[1]) + fmpq(1, 2 ** 64)
         low, high = centre - radius, centre + radius
-        if -bound < low and high < bound and seq[0](low) != 0 and seq[0](high) != 0 \
-                and count_roots(seq, low, high) == 1:
+        if -bound < low and high < bound and _sign(g(low)) * _sign(g(high)) < 0:
             out.append((low, high))
     return out
 

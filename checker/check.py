@@ -9,7 +9,6 @@ or, for ``sat``, the witness satisfies the problem (WITNESS).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from fractions import Fraction
 
 from flint import fmpq, fmpz_poly
 

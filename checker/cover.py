@@ -74,7 +74,7 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[tuple]:
     require_sample_degree(r, sample, node.line)
     if not node.segments:
         raise Rejection("COVER", f"node {node.id} has no intervals", node.line)
-    here = RootsHere(sample)
+    here = AtSample(sample)
     realized = [realize_interval(r, seg, here, level) for seg in node.segments]
     require_covers_line(realized, node)
     relevant: list[fmpz_mpoly] = []
@@ -89,21 +89,31 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[tuple]:
             relevant += check_direct(r, seg, here, level, t, low, high, up)
         else:
             relevant += check_lift(r, seg, node, here, level, t, low, high)
-    return up | project(r, relevant, sample, level, node)
+    return up | project(r, relevant, here, level, node)
 
 
-class RootsHere:
-    """Real roots of polynomials over one node's sample, each isolation done once per node."""
+class AtSample:
+    """Signs, nullification and real roots of polynomials over one node's sample, each computed
+    once per node (the checker's own results, remembered)."""
 
     def __init__(self, sample):
         self.sample = sample
-        self.table: dict[tuple, list[RealAlgebraic]] = {}
+        self.memo: dict[tuple, object] = {}
 
-    def __call__(self, f: fmpz_mpoly) -> list[RealAlgebraic]:
-        k = P.key(f)
-        if k not in self.table:
-            self.table[k] = real_roots_at(f, self.sample)
-        return self.table[k]
+    def _once(self, rule, f: fmpz_mpoly):
+        k = (rule, P.key(f))
+        if k not in self.memo:
+            self.memo[k] = rule(f, self.sample)
+        return self.memo[k]
+
+    def roots(self, f: fmpz_mpoly) -> list[RealAlgebraic]:
+        return self._once(real_roots_at, f)
+
+    def sign(self, f: fmpz_mpoly) -> int:
+        return self._once(sign_at, f)
+
+    def nullified(self, f: fmpz_mpoly) -> bool:
+        return self._once(is_nullified, f)
 
 
 def number(r: Replay, nid: str, line: int) -> RealAlgebraic:
@@ -123,7 +133,7 @@ def require_sample_degree(r: Replay, sample, line: int) -> None:
                         f"{r.limits.max_sample_degree}", line)
 
 
-def bound_value(r: Replay, bound, here: RootsHere, level: int, line: int):
+def bound_value(r: Replay, bound, here: AtSample, level: int, line: int):
     """Rule BOUND: ``pK#j`` is the j-th distinct real root of pK(sample, x_level)."""
     if bound in (NEG_INF, POS_INF):
         return bound
@@ -133,7 +143,7 @@ def bound_value(r: Replay, bound, here: RootsHere, level: int, line: int):
     if P.level(q) > level:
         raise Rejection("BOUND", f"{bound.poly} involves a variable after x{level}", line)
     try:
-        roots = here(q)
+        roots = here.roots(q)
     except KernelError as err:
         raise Rejection("BOUND", f"{bound}: {err}", line) from None
     if not 1 <= bound.index <= len(roots):
@@ -142,7 +152,7 @@ def bound_value(r: Replay, bound, here: RootsHere, level: int, line: int):
     return roots[bound.index - 1]
 
 
-def realize_interval(r: Replay, seg: Segment, here: RootsHere, level: int):
+def realize_interval(r: Replay, seg: Segment, here: AtSample, level: int):
     """The exact (low, high) of a segment; equal values for a point interval."""
     iv = seg.interval
     if iv.low == POS_INF or iv.high == NEG_INF or (iv.point and iv.low in (NEG_INF, POS_INF)):
@@ -205,7 +215,7 @@ class _Ordered:
         return compare(self.a, other.a) < 0
 
 
-def check_direct(r: Replay, seg: Segment, here: RootsHere, level: int, t, low, high,
+def check_direct(r: Replay, seg: Segment, here: AtSample, level: int, t, low, high,
                  up: set) -> list:
     """Rule DIRECT: the literal has one sign on the interval and that sign falsifies it."""
     text = str(seg.literal)
@@ -215,9 +225,9 @@ def check_direct(r: Replay, seg: Segment, here: RootsHere, level: int, t, low, h
     if P.level(p) > level:
         raise Rejection("DIRECT", f"{text} involves a variable after x{level}", seg.line)
     sample = here.sample
-    if is_nullified(p, sample):
+    if here.nullified(p):
         return check_nullified(r, seg, p, rel, level, up)
-    roots = here(p) if P.level(p) == level else []
+    roots = here.roots(p) if P.level(p) == level else []
     if seg.interval.point:
         on_root = any(compare(z, low) == 0 for z in roots)
         value_sign = 0 if on_root else sign_at(p, sample + (low,))
@@ -241,7 +251,7 @@ def check_nullified(r: Replay, seg: Segment, p, rel: str, level: int, up: set) -
     return []
 
 
-def check_lift(r: Replay, seg: Segment, node: Node, here: RootsHere, level: int, t, low,
+def check_lift(r: Replay, seg: Segment, node: Node, here: AtSample, level: int, t, low,
                high) -> list:
     """Rule LIFT: the child covers the next line; the declared set holds what it passes up and
     its level-``level`` members' nearest roots around the sample are the interval's bounds."""
@@ -268,12 +278,12 @@ def check_lift(r: Replay, seg: Segment, node: Node, here: RootsHere, level: int,
     return declared
 
 
-def require_nearest_roots(seg: Segment, here: RootsHere, t, low, high, q) -> None:
+def require_nearest_roots(seg: Segment, here: AtSample, t, low, high, q) -> None:
     """Rule LIFT (bounds): the interval is the sector or section of the declared set around t."""
     roots = []
     for f in q:
         try:
-            roots += here(f)
+            roots += here.roots(f)
         except KernelError:
             raise Rejection("LIFT", "a declared polynomial vanishes identically at the sample",
                             seg.line) from None
@@ -299,7 +309,7 @@ def _same(a, b) -> bool:
     return compare(a, b) == 0
 
 
-def project(r: Replay, relevant: list, sample, level: int, node: Node) -> set[tuple]:
+def project(r: Replay, relevant: list, here: AtSample, level: int, node: Node) -> set[tuple]:
     """Rule PROJECT (conservative, SOUNDNESS.md §4): what the node passes up."""
     main: dict[tuple, fmpz_mpoly] = {}
     up: set[tuple] = set()
@@ -312,7 +322,7 @@ def project(r: Replay, relevant: list, sample, level: int, node: Node) -> set[tu
     var = level - 1
     for f in main.values():
         r.limits.tick(node.line)
-        up |= coefficient_chain(r, f, var, sample, node)
+        up |= coefficient_chain(r, f, var, here, node)
         if P.degree_in(f, var) >= 2:
             up |= nonzero_factors(r, P.discriminant(f, var), "discriminant", node)
     for f, g in combinations(main.values(), 2):
@@ -321,14 +331,14 @@ def project(r: Replay, relevant: list, sample, level: int, node: Node) -> set[tu
     return up
 
 
-def coefficient_chain(r: Replay, f, var: int, sample, node: Node) -> set[tuple]:
+def coefficient_chain(r: Replay, f, var: int, here: AtSample, node: Node) -> set[tuple]:
     """Coefficients of f in x_level from the leading one to the first non-zero at the sample."""
     out: set[tuple] = set()
     for c in P.coefficients_in(f, var):
         if c.is_zero():
             continue
         out |= {P.key(g) for g in r.factors(c)} if not c.is_constant() else set()
-        if sign_at(c, sample) != 0:
+        if here.sign(c) != 0:
             return out
     raise Rejection("PROJECT", f"node {node.id}: a characterization polynomial vanishes "
                     "identically at the sample (nullification)", node.line)

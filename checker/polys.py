@@ -31,12 +31,15 @@ def permuted(poly: fmpz_mpoly, order: list[int]) -> fmpz_mpoly:
 def level(f: fmpz_mpoly) -> int:
     """1 + index of the last variable occurring in ``f``; 0 for a constant."""
     degs = f.degrees()
-    return max((k + 1 for k, d in enumerate(degs) if d > 0), default=0)
+    k = len(degs)
+    while k and not degs[k - 1]:
+        k -= 1
+    return k
 
 
-def key(f: fmpz_mpoly) -> tuple:
-    """A hashable identity of ``f`` as an exact object."""
-    return tuple(sorted(f.to_dict().items()))
+def key(f: fmpz_mpoly) -> str:
+    """A hashable identity of ``f`` among polynomials of one context: flint's canonical text."""
+    return str(f)
 
 
 def normalized(f: fmpz_mpoly) -> fmpz_mpoly:

@@ -48,6 +48,7 @@ from typing import Sequence
 from flint import arb, ctx, fmpq, fmpz_mpoly, fmpz_mpoly_ctx, fmpz_poly
 
 from .algebraic import KernelError, RealAlgebraic, ball, real_roots, reduced, refine
+from .polys import coefficients_in
 
 
 def _require_variables(p: fmpz_mpoly, count: int) -> None:
@@ -57,8 +58,15 @@ def _require_variables(p: fmpz_mpoly, count: int) -> None:
 
 
 def _substitute_rationals(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpz_mpoly:
-    """A positive integer multiple of p with every rational coordinate of `point` substituted."""
-    values = {i: a.low for i, a in enumerate(point) if a.is_rational()}
+    """A positive integer multiple of p with every rational coordinate of `point` substituted
+    (integers by flint's substitution, the others term by term)."""
+    names = p.context().names()
+    integers = {names[i]: a.low.p for i, a in enumerate(point) if a.is_rational() and a.low.q == 1}
+    if integers:
+        p = p.subs(integers)
+    values = {i: a.low for i, a in enumerate(point) if a.is_rational() and a.low.q != 1}
+    if not values:
+        return p
     terms: dict[tuple, fmpq] = {}
     for exps, c in p.terms():
         value = fmpq(c)
@@ -70,16 +78,23 @@ def _substitute_rationals(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpz
     return p.context().from_dict({e: v.p * (den // v.q) for e, v in terms.items() if v != 0})
 
 
+def _eliminate_algebraic(F: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpz_mpoly:
+    """F with each algebraic coordinate x_i that occurs eliminated: Res_{x_i}(F, d_i(x_i)), in turn."""
+    ctx = F.context()
+    for i, a in enumerate(point):
+        if not a.is_rational() and F.degrees()[i] > 0:
+            d = {tuple(j if v == i else 0 for v in range(ctx.nvars())): c
+                 for j, c in enumerate(a.poly.coeffs())}
+            F = F.resultant(ctx.from_dict(d), ctx.names()[i])
+    return F
+
+
 def _eliminate(q: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> tuple[fmpz_mpoly, int]:
     """R = iterated resultant of z - q with the d_i of the coordinates that occur (module docstring), and the index of z."""
     names = q.context().names()
     z = len(names)
     zctx = fmpz_mpoly_ctx.get(names + ("z",), "lex")
-    R = zctx.gen(z) - zctx.from_dict({e + (0,): c for e, c in q.terms()})
-    for i, a in enumerate(point):
-        if not a.is_rational() and R.degrees()[i] > 0:
-            d = {tuple(j if v == i else 0 for v in range(z + 1)): c for j, c in enumerate(a.poly.coeffs())}
-            R = R.resultant(zctx.from_dict(d), names[i])
+    R = _eliminate_algebraic(zctx.gen(z) - zctx.from_dict({e + (0,): c for e, c in q.terms()}), point)
     if any(R.degrees()[:len(point)]):
         raise KernelError(f"elimination left a coordinate in {R}")
     return R, z
@@ -131,32 +146,23 @@ def sign_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> int:
         prec *= 2
 
 
-def _coefficients_in(p: fmpz_mpoly, k: int) -> list[fmpz_mpoly]:
-    """The coefficients of p as a polynomial in x_k (each free of x_k)."""
-    groups: dict[int, dict] = {}
-    for exps, c in p.terms():
-        groups.setdefault(exps[k], {})[exps[:k] + (0,) + exps[k + 1:]] = c
-    return [p.context().from_dict(terms) for terms in groups.values()]
-
-
 def is_nullified(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> bool:
-    """Whether every coefficient of p in x_k (k = len(point)) is zero at `point`."""
+    """Whether every coefficient of p in x_k (k = len(point)) is zero at `point` (at a rational
+    point: whether p with the point substituted is the zero polynomial)."""
     k = len(point)
     if p.context().nvars() <= k:
         raise KernelError(f"no variable x{k} in the context of {p}")
     _require_variables(p, k + 1)
-    return all(sign_at(c, point) == 0 for c in _coefficients_in(p, k))
+    point = [reduced(a) for a in point]
+    if all(a.is_rational() for a in point):
+        return _substitute_rationals(p, point).is_zero()
+    return all(sign_at(c, point) == 0 for c in coefficients_in(p, k))
 
 
 def _norm(q: fmpz_mpoly, point: Sequence[RealAlgebraic], k: int) -> fmpz_poly:
     """N(x_k): the plain iterated resultant of q with the d_i when it is non-zero (it equals
     S(0, x_k) with m = 0), else S(0, x_k) from the elimination with z (module docstring)."""
-    N = q
-    for i, a in enumerate(point):
-        if not a.is_rational() and N.degrees()[i] > 0:
-            d = {tuple(j if v == i else 0 for v in range(q.context().nvars())): c
-                 for j, c in enumerate(a.poly.coeffs())}
-            N = N.resultant(q.context().from_dict(d), q.context().names()[i])
+    N = _eliminate_algebraic(q, point)
     if not N.is_zero():
         coeffs = [0] * (N.degrees()[k] + 1)
         for exps, c in N.terms():
@@ -174,10 +180,13 @@ def _norm(q: fmpz_mpoly, point: Sequence[RealAlgebraic], k: int) -> fmpz_poly:
 def real_roots_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> list[RealAlgebraic]:
     """The distinct real roots of p(point, x_k), k = len(point), increasing, each checked (module docstring)."""
     k = len(point)
-    if is_nullified(p, point):
-        raise KernelError(f"{p} vanishes identically in x{k} at the point")
+    if p.context().nvars() <= k:
+        raise KernelError(f"no variable x{k} in the context of {p}")
+    _require_variables(p, k + 1)
     point = [reduced(a) for a in point]
     q = _substitute_rationals(p, point)
+    if q.is_zero() or (not all(a.is_rational() for a in point) and is_nullified(p, point)):
+        raise KernelError(f"{p} vanishes identically in x{k} at the point")
     candidates = real_roots(_norm(q, point, k))
     if all(d == 0 for d in q.degrees()[:k]):
         return candidates

@@ -235,8 +235,8 @@ def inspect_report(problem) -> dict:
             "atom": f"{poly_to_text(atom.poly, names)} {atom.rel} 0",
             "polynomial": poly_to_text(atom.poly, names),
             "relation": atom.rel,
-            "degree": int(atom.degree()),
-            "degrees": {names[i]: int(degrees[i]) for i in atom.variables()},
+            "degree": int(atom.poly.total_degree()),
+            "degrees": {names[i]: int(d) for i, d in enumerate(degrees) if d > 0},
         })
     return {
         "file": problem.path,

@@ -33,14 +33,14 @@ from __future__ import annotations
 
 import time
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from functools import cmp_to_key
 
 from flint import fmpz, fmpz_mpoly
 
 from certformat.formula import relation_holds
 
-from .characterize import Nullification, PolyStore, poly_level
+from .characterize import PolyStore, poly_level
 from .numbers import RealAlg
 from .roots import Nullified, real_roots_at, sample_between, sign_at
 

@@ -164,7 +164,7 @@ def _window(cert: Certificate, np):
             xs += real_roots(_in_x1(poly), np)
     for lemma in cert.lemmas:
         for node in _subtree(cert, lemma.root):
-            if node.level == 1:
+            if not node.sample:
                 xs += [number_value(cert, seg.sample) for seg in node.segments]
             else:
                 t = number_value(cert, node.sample[0])

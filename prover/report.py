@@ -278,7 +278,7 @@ def statistics(cert, cert_bytes: bytes) -> dict[str, int]:
         "lines": cert_bytes.count(b"\n"),
         "lemmas": len(cert.lemmas),
         "covering nodes": len(cert.nodes),
-        "deepest level": max((n.level for n in cert.nodes.values()), default=0),
+        "deepest level": max((len(n.sample) + 1 for n in cert.nodes.values()), default=0),
         "segments": len(segments),
         "direct segments": sum(1 for s in segments if s.literal is not None),
         "lifted segments": sum(1 for s in segments if s.child is not None),
