@@ -20,8 +20,8 @@ MAX_CERTIFICATE_BYTES = 256 * 1024 * 1024
 
 # ---------------------------------------------------------------- reading
 
-_TOKEN = re.compile(r'("(?:[^"\\\n]|\\["\\/bfnrtu])*")|([-+]inf\b)|(<=|>=|!=|<|>|=)'
-                    r'|([A-Za-z0-9]+(?:#[0-9]+)?)|([-+*^/@(),\[\]~])|(%.*)|([^ \t])')
+_TOKEN = re.compile(r'"(?:[^"\\\n]|\\["\\/bfnrtu])*"|[-+]inf\b|<=|>=|!=|<|>|='
+                    r'|[A-Za-z0-9]+(?:#[0-9]+)?|[-+*^/@(),\[\]~]|%.*|[^ \t]')
 """Tokens: a string, an infinity, a relation, a word, a mark; then a comment; then any other
 character, which is an error."""
 _PATTERNS = {kind: re.compile(pattern) for kind, pattern in {
@@ -36,32 +36,34 @@ class _Line:
 
     def __init__(self, text: str, path: str, line: int):
         self.path, self.line, self.text, self.i = path, line, text, 0
-        self.tokens: list[tuple[int, str]] = []
-        for m in _TOKEN.finditer(text):
-            if m.lastindex == 6:
+        self.tokens: list[str] = _TOKEN.findall(text)
+        for k, tok in enumerate(self.tokens):
+            if tok[0] == "%":
+                del self.tokens[k:]
                 break
-            if m.lastindex == 7:
-                raise self.error(f"unexpected character {m.group()!r}", m.start())
-            self.tokens.append((m.start(), m.group()))
+            if len(tok) == 1 and not tok.isalnum() and tok not in '-+*^/@(),[]~<>=':
+                self.i = k
+                raise self.error(f"unexpected character {tok!r}")
 
     def error(self, message: str, column: int | None = None) -> InputError:
         if column is None:
-            column = self.tokens[self.i][0] if self.i < len(self.tokens) else len(self.text)
+            starts = [m.start() for m in _TOKEN.finditer(self.text)] + [len(self.text)]
+            column = starts[min(self.i, len(self.tokens))]
         snippet = self.text.strip()[:60]
         return InputError(f"certificate syntax error: {message} in {snippet!r}", self.path,
                           self.line, column + 1, construct=snippet)
 
     def peek(self) -> str | None:
-        return self.tokens[self.i][1] if self.i < len(self.tokens) else None
+        return self.tokens[self.i] if self.i < len(self.tokens) else None
 
     def takes(self, want: str) -> str | None:
         """The next token if it is ``want`` (or matches the pattern so named), else None."""
-        tok = self.peek()
-        pattern = _PATTERNS.get(want)
-        if tok is None or (tok != want if pattern is None else not pattern.fullmatch(tok)):
-            return None
-        self.i += 1
-        return tok
+        if self.i < len(self.tokens):
+            tok, pattern = self.tokens[self.i], _PATTERNS.get(want)
+            if tok == want if pattern is None else pattern.fullmatch(tok):
+                self.i += 1
+                return tok
+        return None
 
     def take(self, want: str) -> str:
         """The next token, which must be ``want`` (or match the pattern so named)."""
@@ -193,7 +195,8 @@ def _var(cert: Certificate, ln: _Line) -> None:
     try:
         name = json.loads(ln.take("STRING"))
     except ValueError:
-        raise ln.error("bad escape in the variable name", ln.tokens[ln.i - 1][0]) from None
+        ln.i -= 1
+        raise ln.error("bad escape in the variable name") from None
     cert.variables.append(VarDecl(int(ident[1:]), index, name, ln.line))
 
 
@@ -206,7 +209,7 @@ def _poly(cert: Certificate, ln: _Line) -> None:
 def _num(cert: Certificate, ln: _Line) -> None:
     ident = _declare(cert, ln, ln.take("NID"))
     ln.take("=")
-    if "@" not in (tok for _, tok in ln.tokens):
+    if "@" not in ln.tokens:
         q = _rational(ln)
         cert.numbers[ident] = Number(None, q, q, ln.line)
         return
@@ -296,7 +299,7 @@ def read_certificate(text: str, path: str = "<certificate>") -> Certificate:
         ln = _Line(raw[:-1] if raw.endswith("\r") else raw, path, number)
         if not ln.tokens:
             continue
-        keyword = ln.tokens[0][1]
+        keyword = ln.tokens[0]
         ln.i = 1
         if cert is None:
             if keyword != "tessella":
@@ -310,7 +313,8 @@ def read_certificate(text: str, path: str = "<certificate>") -> Certificate:
             cert = Certificate(kind=kind, sha256="", variables=[], version=version)
             continue
         if keyword not in _STATEMENTS:
-            raise ln.error(f"unknown statement {keyword!r}", ln.tokens[0][0])
+            ln.i = 0
+            raise ln.error(f"unknown statement {keyword!r}")
         _STATEMENTS[keyword](cert, ln)
         ln.end()
     if cert is None:

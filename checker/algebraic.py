@@ -32,7 +32,7 @@ Algorithms, each with the theorem it rests on:
 * **Equality** -- two irreducible primitive polynomials with a common root are
   equal up to sign (the minimal polynomial is unique), so two numbers are equal
   iff their minimal forms share the polynomial and a root in the intersection
-  of their intervals.  Unequal numbers are separated by bisecting both.
+  of their intervals (a sign change across it).  Unequal numbers are separated by bisecting both.
 """
 from __future__ import annotations
 
@@ -201,13 +201,14 @@ def enclosure(a: RealAlgebraic, prec: int) -> arb:
 # Comparison and roots of univariate polynomials.
 
 def _same_number(a: RealAlgebraic, b: RealAlgebraic) -> bool:
-    """Equality of two numbers in minimal form (uniqueness of the minimal polynomial)."""
+    """Equality of numbers in minimal form: the same minimal polynomial g (it is unique) and a root of g,
+    which is simple, in the intersection of their intervals: a sign change (intermediate value theorem)."""
     if a.is_rational() or b.is_rational():
         return a.is_rational() and b.is_rational() and a.low == b.low
     if a.poly != b.poly and a.poly != -b.poly:
         return False
     low, high = max(a.low, b.low), min(a.high, b.high)
-    return low < high and count_roots(sturm_sequence(fmpq_poly(a.poly)), low, high) == 1
+    return low < high and _sign(a.poly(low)) * _sign(a.poly(high)) < 0
 
 
 def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:

@@ -93,8 +93,7 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[tuple]:
 
 
 class AtSample:
-    """Signs, nullification and real roots of polynomials over one node's sample, each computed
-    once per node (the checker's own results, remembered)."""
+    """Signs, nullification and real roots over one node's sample, each computed once per node."""
 
     def __init__(self, sample):
         self.sample = sample

@@ -17,7 +17,7 @@ from hypothesis import strategies as st
 from certformat.formula import poly_context
 from checker.algebraic import (
     KernelError, RealAlgebraic, cauchy_bound, check_isolating, compare, count_roots,
-    enclosure, real_roots, reduced, refine, squarefree_part, sturm_sequence,
+    enclosure, isolate_quadratic, real_roots, reduced, refine, squarefree_part, sturm_sequence,
 )
 from checker.signs import _eliminate, is_nullified, real_roots_at, sign_at
 
@@ -142,6 +142,42 @@ def test_quadratic_roots_follow_discriminant(a, b, c):
     expected = 2 if disc > 0 else 1 if disc == 0 else 0
     assert len(real_roots(fmpz_poly([c, b, a]))) == expected
     assert len(real_roots_at(a * x1 ** 2 + b * x1 + c, [RealAlgebraic.rational(7)])) == expected
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.integers(-50, 50).filter(bool), st.integers(-10**6, 10**6), st.integers(-10**6, 10**6))
+def test_closed_form_quadratic_isolation_matches_sympy(a, b, c):
+    # sympy as reference library: the real roots of an irreducible quadratic, each strictly
+    # inside exactly one of the closed-form intervals, which are disjoint and hold no other root
+    g = fmpz_poly([c, b, a])
+    assume(len(g.factor()[1]) == 1 and g.factor()[1][0][1] == 1 and g.content() == 1)
+    found = isolate_quadratic(g)
+    expected = sorted(sympy.Poly([a, b, c], Y).real_roots())
+    assert len(found) == len(expected)
+    for r, e in zip(found, expected):
+        assert sympy.Rational(r.low.p, r.low.q) < e < sympy.Rational(r.high.p, r.high.q)
+        check_isolating(r)                                    # one root by Sturm's theorem too
+    if found:
+        assert found[0].high <= found[1].low
+
+
+def test_equality_of_roots_with_overlapping_intervals():
+    # g = z^3 - 3z + 1 is irreducible with three real roots near -1.879, 0.347, 1.532 (values
+    # recalled from memory, checked against sympy below); equality must hold exactly when the
+    # intersection of two isolating intervals holds a root
+    g = fmpz_poly([1, -3, 0, 1])
+    roots = [float(sympy.N(r)) for r in sympy.Poly([1, 0, -3, 1], Y).real_roots()]
+    assert [round(r, 3) for r in roots] == [-1.879, 0.347, 1.532]       # sympy as reference library
+    a = RealAlgebraic(g, fmpq(1), fmpq(2), minimal=True)                # the root 1.532
+    b = RealAlgebraic(g, fmpq(3, 2), fmpq(3), minimal=True)             # the same root
+    c = RealAlgebraic(g, fmpq(0), fmpq(1, 2), minimal=True)             # the root 0.347
+    d = RealAlgebraic(g, fmpq(-2), fmpq(1), minimal=True)               # not isolating: 2 roots
+    assert compare(a, b) == 0 and compare(b, a) == 0
+    assert compare(c, a) == -1 and compare(a, c) == 1
+    with pytest.raises(KernelError):
+        check_isolating(d)
+    e = RealAlgebraic(g, fmpq(1, 3), fmpq(3, 2), minimal=True)          # 0.347 again; overlaps a
+    assert compare(e, a) == -1 and compare(e, c) == 0
 
 
 def test_golden_ratio_and_its_conjugate():
