@@ -62,8 +62,8 @@ class _Encoder:
     def __init__(self, problem: Problem):
         self.atom_index: dict[Atom, int] = {}
         self.atoms: list[Atom] = []
-        for a in problem.atoms():
-            base, _ = base_literal(a)
+        self.base_of = {a: base_literal(a) for a in problem.atoms()}
+        for base, _ in self.base_of.values():
             if base not in self.atom_index:
                 self.atoms.append(base)
                 self.atom_index[base] = len(self.atoms)
@@ -75,7 +75,7 @@ class _Encoder:
     def literal(self, f) -> int:
         """A literal equivalent to ``f``, defining it first if compound."""
         if isinstance(f, Atom):
-            base, positive = base_literal(f)
+            base, positive = self.base_of[f]
             v = self.atom_index[base]
             return v if positive else -v
         if isinstance(f, BoolVar):

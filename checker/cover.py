@@ -31,14 +31,14 @@ class Replay:
     """Literal text (``a3``, ``~a3``) of the current lemma -> (polynomial, effective relation)."""
     visited: set[str] = field(default_factory=set)
     limits: Limits = field(default_factory=Limits)
-    factor_memo: dict[tuple, list] = field(default_factory=dict)
+    factor_memo: dict[str, dict] = field(default_factory=dict)
 
-    def factors(self, f: fmpz_mpoly) -> list[fmpz_mpoly]:
-        """Irreducible factors of f, each factorization done once (the checker's own work,
-        remembered; nothing from the certificate is remembered)."""
+    def factors(self, f: fmpz_mpoly) -> dict[str, fmpz_mpoly]:
+        """Irreducible factors of f by their keys, each factorization done once (the checker's own
+        work, remembered; nothing from the certificate is remembered)."""
         k = P.key(f)
         if k not in self.factor_memo:
-            self.factor_memo[k] = P.irreducible_factors(f)
+            self.factor_memo[k] = {P.key(g): g for g in P.irreducible_factors(f)}
         return self.factor_memo[k]
 
     @property
@@ -57,7 +57,7 @@ def check_lemma(r: Replay, lemma: Lemma, literals: dict[str, tuple[fmpz_mpoly, s
     check_node(r, root, ())
 
 
-def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[tuple]:
+def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
     """Rule COVER: the node's intervals cover the line at its sample; returns what it passes up."""
     r.limits.tick(node.line)
     if node.id in r.visited:
@@ -78,7 +78,7 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[tuple]:
     realized = [realize_interval(r, seg, here, level) for seg in node.segments]
     require_covers_line(realized, node)
     relevant: list[fmpz_mpoly] = []
-    up: set[tuple] = set()
+    up: set[str] = set()
     for seg, (low, high) in zip(node.segments, realized):
         r.limits.tick(seg.line)
         relevant += [r.polys[b.poly] for b in (seg.interval.low, seg.interval.high)
@@ -246,7 +246,7 @@ def check_nullified(r: Replay, seg: Segment, p, rel: str, level: int, up: set) -
                         f"not falsify relation {rel}", seg.line)
     for c in P.coefficients_in(p, level - 1):
         if not c.is_zero():
-            up.update(P.key(f) for f in r.factors(c))
+            up.update(r.factors(c))
     return []
 
 
@@ -259,22 +259,22 @@ def check_lift(r: Replay, seg: Segment, node: Node, here: AtSample, level: int, 
     child = r.cert.nodes.get(seg.child)
     if child is None:
         raise Rejection("LIFT", f"node {seg.child} is not declared", seg.line)
-    declared = []
+    declared: dict[str, fmpz_mpoly] = {}
     for pid in seg.keep:
         if pid not in r.polys:
             raise Rejection("LIFT", f"polynomial {pid} is not declared", seg.line)
         if P.level(r.polys[pid]) > level:
             raise Rejection("LIFT", f"declared {pid} involves a variable after x{level}", seg.line)
         if not r.polys[pid].is_constant():
-            declared += r.factors(r.polys[pid])
+            declared.update(r.factors(r.polys[pid]))
     passed = check_node(r, child, node.sample + (seg.sample,))
-    keys = {P.key(f) for f in declared}
-    missing = passed - keys
+    missing = passed - declared.keys()
     if missing:
         raise Rejection("PROJECT", f"projection not declared: {len(missing)} polynomial(s) that "
                         f"node {child.id} passes up are missing from 'keep'", seg.line)
-    require_nearest_roots(seg, here, t, low, high, [f for f in declared if P.level(f) == level])
-    return declared
+    require_nearest_roots(seg, here, t, low, high,
+                          [f for f in declared.values() if P.level(f) == level])
+    return list(declared.values())
 
 
 def require_nearest_roots(seg: Segment, here: AtSample, t, low, high, q) -> None:
@@ -308,16 +308,16 @@ def _same(a, b) -> bool:
     return compare(a, b) == 0
 
 
-def project(r: Replay, relevant: list, here: AtSample, level: int, node: Node) -> set[tuple]:
+def project(r: Replay, relevant: list, here: AtSample, level: int, node: Node) -> set[str]:
     """Rule PROJECT (conservative, SOUNDNESS.md §4): what the node passes up."""
-    main: dict[tuple, fmpz_mpoly] = {}
-    up: set[tuple] = set()
+    main: dict[str, fmpz_mpoly] = {}
+    up: set[str] = set()
     for g in relevant:
-        for f in r.factors(g):
+        for k, f in r.factors(g).items():
             if P.level(f) == level:
-                main.setdefault(P.key(f), f)
+                main.setdefault(k, f)
             else:
-                up.add(P.key(f))
+                up.add(k)
     var = level - 1
     for f in main.values():
         r.limits.tick(node.line)
@@ -330,21 +330,21 @@ def project(r: Replay, relevant: list, here: AtSample, level: int, node: Node) -
     return up
 
 
-def coefficient_chain(r: Replay, f, var: int, here: AtSample, node: Node) -> set[tuple]:
+def coefficient_chain(r: Replay, f, var: int, here: AtSample, node: Node) -> set[str]:
     """Coefficients of f in x_level from the leading one to the first non-zero at the sample."""
-    out: set[tuple] = set()
+    out: set[str] = set()
     for c in P.coefficients_in(f, var):
         if c.is_zero():
             continue
-        out |= {P.key(g) for g in r.factors(c)} if not c.is_constant() else set()
+        out |= r.factors(c).keys() if not c.is_constant() else set()
         if here.sign(c) != 0:
             return out
     raise Rejection("PROJECT", f"node {node.id}: a characterization polynomial vanishes "
                     "identically at the sample (nullification)", node.line)
 
 
-def nonzero_factors(r: Replay, g, what: str, node: Node) -> set[tuple]:
+def nonzero_factors(r: Replay, g, what: str, node: Node) -> set[str]:
     """The irreducible factors of a projection polynomial, which must not be zero."""
     if g.is_zero():
         raise Rejection("PROJECT", f"node {node.id}: a {what} is identically zero", node.line)
-    return {P.key(f) for f in r.factors(g)} if not g.is_constant() else set()
+    return set(r.factors(g)) if not g.is_constant() else set()
