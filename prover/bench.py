@@ -11,7 +11,8 @@ command exit 1.
 
 The summary gives, for sat and unsat, over all files and over the pure
 conjunctions: solved/total, median and 90th-percentile prove time, the median
-check/prove time ratio, the median certificate size; the slowest checks; and
+check/prove time ratio (per file; checking includes reading the certificate), the
+total check time over the total prove time, the median certificate size; the slowest checks; and
 the unsolved files by family with their reasons.  ``--out`` keeps one JSON
 record per file.
 """
@@ -135,7 +136,8 @@ def _figures(records: list[dict], status: str) -> dict:
     mine = [r for r in records if r["status"] == status]
     solved = [r for r in mine if r["answer"] == status]
     times = [r["time"] for r in solved]
-    ratios = [r["check_time"] / max(r["time"], 1e-6) for r in solved if "check_time" in r]
+    checked = [r for r in solved if "check_time" in r]
+    ratios = [r["check_time"] / max(r["time"], 1e-6) for r in checked]
     return {
         "total": len(mine), "solved": len(solved),
         "wrong": [r["file"] for r in mine if r["answer"] in ("sat", "unsat")
@@ -144,6 +146,8 @@ def _figures(records: list[dict], status: str) -> dict:
         "median_time": statistics.median(times) if times else float("nan"),
         "p90_time": _percentile(times, 0.9),
         "median_ratio": statistics.median(ratios) if ratios else float("nan"),
+        "total_ratio": (sum(r["check_time"] for r in checked) /
+                        max(sum(r["time"] for r in checked), 1e-6)) if checked else float("nan"),
         "median_bytes": statistics.median([r["bytes"] for r in solved]) if solved else 0,
     }
 
@@ -175,14 +179,15 @@ def report(summary: dict) -> str:
              f"timeout {summary['timeout']:g} s, {summary.get('jobs', 1)} jobs, "
              f"wall time {summary.get('wall_time', 0):.0f} s, "
              f"parsing {summary['parse_time']:.1f} s in all"]
-    header = f"{'':18} {'solved':>14} {'median':>8} {'p90':>8} {'check/prove':>11} {'cert':>7}"
+    header = (f"{'':18} {'solved':>14} {'median':>8} {'p90':>8} {'check/prove':>11} "
+              f"{'total c/p':>9} {'cert':>7}")
     lines.append(header)
     for key in ("sat", "unsat", "conjunctive_sat", "conjunctive_unsat"):
         s = summary[key]
         pct = 100.0 * s["solved"] / s["total"] if s["total"] else float("nan")
         lines.append(f"{key:18} {s['solved']:>5}/{s['total']:<5} {pct:5.1f}% "
                      f"{s['median_time']:7.3f}s {s['p90_time']:7.3f}s {s['median_ratio']:11.2f} "
-                     f"{s['median_bytes']:6.0f}B")
+                     f"{s['total_ratio']:9.2f} {s['median_bytes']:6.0f}B")
         if s["wrong"]:
             lines.append(f"  WRONG ANSWERS: {s['wrong']}")
         if s["rejected"]:
