@@ -181,27 +181,22 @@ def require_inside(t: RealAlgebraic, low, high, seg: Segment) -> None:
 
 
 def require_covers_line(realized, node: Node) -> None:
-    """Rule COVER: every endpoint and every gap between consecutive endpoints is covered."""
-    ends: list[RealAlgebraic] = []
-    for low, high in realized:
-        for e in (low, high):
-            if e not in (NEG_INF, POS_INF) and not any(compare(e, f) == 0 for f in ends):
-                ends.append(e)
-    ends.sort(key=_Ordered)
-    for e in ends:
-        if not any(_contains_point(iv, e, seg.interval.point)
-                   for iv, seg in zip(realized, node.segments)):
-            raise Rejection("COVER", f"node {node.id}: a bound value is not covered", node.line)
-    gaps = list(zip([NEG_INF] + ends, ends + [POS_INF]))
-    for a, b in gaps:
-        if not any(not seg.interval.point and less(iv[0], a, True) and less(b, iv[1], True)
-                   for iv, seg in zip(realized, node.segments)):
-            raise Rejection("COVER", f"node {node.id}: the intervals leave a gap", node.line)
-
-
-def _contains_point(iv, e, point: bool) -> bool:
-    low, high = iv
-    return compare(low, e) == 0 if point else (less(low, e) and less(e, high))
+    """Rule COVER: read left to right, each segment starts at or before the first value not yet
+    covered, and together they reach +inf (all x < reach are covered, and reach too if closed)."""
+    reach, closed = NEG_INF, True
+    for (low, high), seg in zip(realized, node.segments):
+        if seg.interval.point:
+            if less(reach, low):
+                break
+            closed = closed or not less(low, reach)
+        elif less(low, reach) or (closed and not less(reach, low)):
+            if less(reach, high):
+                reach, closed = high, False
+        else:
+            break
+    if reach != POS_INF:
+        raise Rejection("COVER", f"node {node.id}: the intervals, read left to right, leave a gap "
+                        f"at or after {'-inf' if reach == NEG_INF else 'a bound value'}", node.line)
 
 
 class _Ordered:

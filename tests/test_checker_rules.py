@@ -44,6 +44,9 @@ MUTANTS = [
     ("wrong projection polynomial", "poly p3 = x1", "poly p3 = x1 - 1", "PROJECT"),
     ("gap opened", "  seg (p1#1, +inf) at n4 by a2\nnode c2", "node c2", "COVER"),
     ("covered point dropped", "  seg [p3#1] at n1 lift c2 keep p3\n", "", "COVER"),
+    ("intervals not left to right", "  seg (-inf, p1#1) at n1 by a1\n  seg [p1#1] at n3 by a1\n"
+     "  seg (p1#1, +inf) at n4 by a2\nnode c2", "  seg [p1#1] at n3 by a1\n  seg (-inf, p1#1) at n1 "
+     "by a1\n  seg (p1#1, +inf) at n4 by a2\nnode c2", "COVER"),
     ("sample outside interval", "seg (-inf, p1#1) at n1 by a1", "seg (-inf, p1#1) at n4 by a1",
      "COVER"),
     ("root index shifted", "seg (-inf, p3#1) at n2", "seg (-inf, p3#2) at n2", "BOUND"),
