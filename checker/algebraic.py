@@ -178,8 +178,15 @@ def _halve(a: RealAlgebraic) -> RealAlgebraic:
 
 
 def refine(a: RealAlgebraic, width: fmpq) -> RealAlgebraic:
-    """`a` in minimal form with an isolating interval no wider than `width`, by bisection."""
+    """`a` in minimal form with an isolating interval no wider than `width`: a sub-interval around Arb's
+    enclosure where the polynomial changes sign (so it holds `a`), else by bisection."""
     a = reduced(a)
+    if a.high - a.low > width and not a.is_rational():
+        with ctx.workprec(max(64, int(width.q).bit_length() - int(width.p).bit_length() + 32)):
+            for low, high in _hinted_intervals(a.poly, width / 8):
+                low, high = max(low, a.low), min(high, a.high)
+                if low < high <= low + width and _sign(a.poly(low)) * _sign(a.poly(high)) < 0:
+                    a = RealAlgebraic(a.poly, low, high, a.minimal)
     while a.high - a.low > width:
         a = _halve(a)
     return a
@@ -233,7 +240,7 @@ def isolate(g: fmpz_poly) -> list[RealAlgebraic]:
     seq = sturm_sequence(fmpq_poly(g))
     bound = cauchy_bound(g)
     total = count_roots(seq, -bound, bound)
-    hinted = sorted(_hinted_intervals(g, bound))
+    hinted = sorted((l, h) for l, h in _hinted_intervals(g) if -bound < l and h < bound)
     if len(hinted) == total and all(h <= l for (_, h), (l, _) in zip(hinted, hinted[1:])):
         return [RealAlgebraic(g, low, high, minimal=True) for low, high in hinted]
     pending, found = [(-bound, bound)], []
@@ -263,19 +270,18 @@ def isolate_quadratic(g: fmpz_poly) -> list[RealAlgebraic]:
             RealAlgebraic(g, ends[2], ends[3], minimal=True)]
 
 
-def _hinted_intervals(g: fmpz_poly, bound: fmpq) -> list[tuple[fmpq, fmpq]]:
-    """Rational intervals around Arb's real root enclosures where g changes sign, so each holds a root
-    (intermediate value theorem; with as many intervals as roots, disjoint, each holds exactly one)."""
+def _hinted_intervals(g: fmpz_poly, pad: fmpq = fmpq(1, 2 ** 64)) -> list[tuple[fmpq, fmpq]]:
+    """Rational intervals around Arb's real root enclosures (padded) where g changes sign, so each holds
+    a root (intermediate value theorem; with as many intervals as roots, disjoint, each holds one)."""
     out = []
     for z, _ in g.complex_roots():
         if not z.imag == 0:
             continue
         mid, rad = z.real.mid().man_exp(), z.real.rad().man_exp()
         centre = fmpq(mid[0]) * fmpq(2) ** int(mid[1])
-        radius = 2 * fmpq(rad[0]) * fmpq(2) ** int(rad[1]) + fmpq(1, 2 ** 64)
-        low, high = centre - radius, centre + radius
-        if -bound < low and high < bound and _sign(g(low)) * _sign(g(high)) < 0:
-            out.append((low, high))
+        radius = 2 * fmpq(rad[0]) * fmpq(2) ** int(rad[1]) + pad
+        if _sign(g(centre - radius)) * _sign(g(centre + radius)) < 0:
+            out.append((centre - radius, centre + radius))
     return out
 
 

@@ -17,10 +17,9 @@ coefficient in ``z`` is a non-zero integer) and ``q(a)`` is a root of ``R``.
 **Sign at a point.**  Rational point: exact evaluation.  Otherwise an arb
 enclosure of ``q(a)`` (coordinates enclosed by bisection with exact sign
 tests) decides the sign when it excludes zero.  Zero is decided only by the
-root-gap rule: write ``R(z) = z^m · S(z)`` with ``S(0) != 0``.  If ``m = 0``,
-``q(a) != 0``.  Otherwise every non-zero root of ``R`` is a root of ``S`` and has
-modulus greater than ``|s_0| / (|s_0| + max_{j>=1} |s_j|)`` (Cauchy's bound
-applied to the reciprocal polynomial ``z^deg S · S(1/z)``); an enclosure
+root-gap bound of SOUNDNESS.md (rule SIGN), computed from degrees and
+coefficient sizes without forming ``R`` (:func:`zero_bound`): every non-zero
+root of ``R`` exceeds ``1 / (1 + C (1 + Q)^D)`` in modulus, so an enclosure
 strictly inside that radius proves ``q(a) = 0``.  The loop doubles the precision
 until one of the two happens, which it does: the enclosures shrink to ``q(a)``.
 (The working precision, set with flint's ``ctx.workprec``, affects only how
@@ -42,12 +41,12 @@ is ``S(0, x_k)`` with ``m = 0``.
 """
 from __future__ import annotations
 
-from math import lcm
+from math import lcm, prod
 from typing import Sequence
 
 from flint import arb, ctx, fmpq, fmpz_mpoly, fmpz_mpoly_ctx, fmpz_poly
 
-from .algebraic import KernelError, RealAlgebraic, ball, real_roots, reduced, refine
+from .algebraic import KernelError, RealAlgebraic, ball, cauchy_bound, real_roots, reduced, refine
 from .polys import coefficients_in
 
 
@@ -100,14 +99,15 @@ def _eliminate(q: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> tuple[fmpz_mpol
     return R, z
 
 
-def _root_gap(R: fmpz_mpoly, z: int) -> fmpq:
-    """0 if R(0) != 0; else |s_0| / (|s_0| + max_{j>=1} |s_j|) for R = z^m S(z): no non-zero root of R is smaller (Cauchy, reciprocal)."""
-    coeffs = {exps[z]: c for exps, c in R.terms()}
-    m = min(coeffs)
-    if m == 0:
-        return fmpq(0)
-    s0 = abs(coeffs[m])
-    return fmpq(s0, s0 + max((abs(c) for j, c in coeffs.items() if j > m), default=0))
+def zero_bound(q: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpq:
+    """1 / (1 + C (1 + Q)^D): no non-zero q(a') over conjugate tuples a' is smaller (module docstring)."""
+    degs = q.degrees()
+    occurring = [(i, a.poly) for i, a in enumerate(point) if degs[i] > 0]
+    D = prod(d.degree() for _, d in occurring)
+    B = {i: cauchy_bound(d) for i, d in occurring}
+    Q = sum(abs(c) * prod(B[i] ** e[i] for i in B) for e, c in q.terms())
+    C = prod(abs(d.coeffs()[-1]) ** (degs[i] * D // d.degree()) for i, d in occurring)
+    return 1 / (1 + C * (1 + Q) ** D)
 
 
 def _evaluate(q: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> arb:
@@ -130,7 +130,7 @@ def sign_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> int:
     q = _substitute_rationals(p, point)
     if q.is_constant():
         return 0 if q.is_zero() else (1 if q.leading_coefficient() > 0 else -1)
-    gap, prec = None, 64
+    gap, prec = zero_bound(q, point), 64
     while True:
         point = [refine(a, fmpq(1, 2 ** prec)) for a in point]
         with ctx.workprec(prec):
@@ -139,9 +139,7 @@ def sign_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> int:
                 return 1
             if value < 0:
                 return -1
-            if gap is None and prec >= 256:
-                gap = _root_gap(*_eliminate(q, point))
-            if gap is not None and abs(value) < arb(gap):
+            if abs(value) < arb(gap):
                 return 0
         prec *= 2
 
