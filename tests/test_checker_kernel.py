@@ -506,3 +506,29 @@ def test_elimination_matches_sympy_resultant(terms, c0, c1):
     ours = sympy.Add(*[int(c) * Z ** e[z] * sympy.Mul(*[X[i] ** k for i, k in enumerate(e[:3])])
                        for e, c in R.terms()])
     assert sympy.expand(ours - expected) == 0 or sympy.expand(ours + expected) == 0
+
+
+@examples(60)
+@given(terms_strategy(2, 3, coeff=9),
+       st.sampled_from([[-2, 0, 1], [-3, 0, 0, 1], [-1, -1, 1], [1, -3, 0, 1], [-5, 0, 2]]),
+       st.sampled_from([[-2, 0, 1], [-3, 0, 0, 1], [2, 0, -3, 0, 1], [-7, 0, 3]]))
+def test_zero_bound_is_below_every_nonzero_conjugate_value(terms, d0, d1):
+    # the root-gap bound of SOUNDNESS.md (rule SIGN) against sympy as reference library: over
+    # every tuple of complex roots (t0, t1) of the two defining polynomials, q(t0, t1) is either
+    # zero or larger in modulus than the bound
+    from checker.signs import zero_bound
+    q = CTX.from_dict({e + (0,): c for e, c in terms.items()})
+    assume(not q.is_constant())
+    point = [RealAlgebraic(fmpz_poly(d0), fmpq(-10), fmpq(10), minimal=True),
+             RealAlgebraic(fmpz_poly(d1), fmpq(-10), fmpq(10), minimal=True)]
+    bound = zero_bound(q, point)
+    Z = sympy.Symbol("z")
+    roots0 = sympy.Poly(list(reversed(d0)), Z).all_roots()
+    roots1 = sympy.Poly(list(reversed(d1)), Z).all_roots()
+    expr = sum(c * X[0] ** e[0] * X[1] ** e[1] for e, c in terms.items())
+    deg = q.degrees()
+    for t0 in (roots0 if deg[0] else roots0[:1]):
+        for t1 in (roots1 if deg[1] else roots1[:1]):
+            value = sympy.N(expr.subs({X[0]: t0, X[1]: t1}), 60)
+            if abs(value) > sympy.Float(10) ** -50:                     # numerically non-zero
+                assert abs(value) > sympy.Rational(int(bound.p), int(bound.q))
