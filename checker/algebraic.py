@@ -178,8 +178,7 @@ def _halve(a: RealAlgebraic) -> RealAlgebraic:
 
 
 def refine(a: RealAlgebraic, width: fmpq) -> RealAlgebraic:
-    """`a` in minimal form with an isolating interval no wider than `width`: a sub-interval around Arb's
-    enclosure where the polynomial changes sign (so it holds `a`), else by bisection."""
+    """`a` in minimal form, its interval no wider than `width`: around an Arb hint if g changes sign there, else by bisection."""
     a = reduced(a)
     if a.high - a.low > width and not a.is_rational():
         with ctx.workprec(max(64, int(width.q).bit_length() - int(width.p).bit_length() + 32)):
@@ -271,8 +270,7 @@ def isolate_quadratic(g: fmpz_poly) -> list[RealAlgebraic]:
 
 
 def _hinted_intervals(g: fmpz_poly, pad: fmpq = fmpq(1, 2 ** 64)) -> list[tuple[fmpq, fmpq]]:
-    """Rational intervals around Arb's real root enclosures (padded) where g changes sign, so each holds
-    a root (intermediate value theorem; with as many intervals as roots, disjoint, each holds one)."""
+    """Rational intervals around Arb's real root enclosures (padded) where g changes sign, so each holds a root."""
     out = []
     for z, _ in g.complex_roots():
         if not z.imag == 0:
@@ -286,8 +284,7 @@ def _hinted_intervals(g: fmpz_poly, pad: fmpq = fmpq(1, 2 ** 64)) -> list[tuple[
 
 
 def real_roots(f: fmpz_poly) -> list[RealAlgebraic]:
-    """The distinct real roots of f != 0 in increasing order, each defined by an irreducible factor of f
-    (an interval from :func:`isolate` holds exactly one root by Sturm's theorem, none at its ends)."""
+    """The distinct real roots of f != 0 in increasing order, each isolated per irreducible factor of f (:func:`isolate`)."""
     if f.is_zero():
         raise KernelError("the zero polynomial has every number as a root")
     roots = []

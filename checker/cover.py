@@ -32,10 +32,10 @@ class Replay:
     visited: set[str] = field(default_factory=set)
     limits: Limits = field(default_factory=Limits)
     factor_memo: dict[str, dict] = field(default_factory=dict)
+    projections: dict[tuple, set] = field(default_factory=dict)
 
     def factors(self, f: fmpz_mpoly) -> dict[str, fmpz_mpoly]:
-        """Irreducible factors of f by their keys, each factorization done once (the checker's own
-        work, remembered; nothing from the certificate is remembered)."""
+        """Irreducible factors of f by their keys, each factorization done once per check."""
         k = P.key(f)
         if k not in self.factor_memo:
             self.factor_memo[k] = {P.key(g): g for g in P.irreducible_factors(f)}
@@ -314,14 +314,14 @@ def project(r: Replay, relevant: list, here: AtSample, level: int, node: Node) -
             else:
                 up.add(k)
     var = level - 1
-    for f in main.values():
+    for k, f in main.items():
         r.limits.tick(node.line)
         up |= coefficient_chain(r, f, var, here, node)
         if P.degree_in(f, var) >= 2:
-            up |= nonzero_factors(r, P.discriminant(f, var), "discriminant", node)
-    for f, g in combinations(main.values(), 2):
+            up |= nonzero_factors(r, (k,), lambda: P.discriminant(f, var), "discriminant", node)
+    for (k, f), (l, g) in combinations(main.items(), 2):
         r.limits.tick(node.line)
-        up |= nonzero_factors(r, P.resultant(f, g, var), "resultant", node)
+        up |= nonzero_factors(r, (k, l), lambda: P.resultant(f, g, var), "resultant", node)
     return up
 
 
@@ -338,8 +338,11 @@ def coefficient_chain(r: Replay, f, var: int, here: AtSample, node: Node) -> set
                     "identically at the sample (nullification)", node.line)
 
 
-def nonzero_factors(r: Replay, g, what: str, node: Node) -> set[str]:
-    """The irreducible factors of a projection polynomial, which must not be zero."""
-    if g.is_zero():
-        raise Rejection("PROJECT", f"node {node.id}: a {what} is identically zero", node.line)
-    return set(r.factors(g)) if not g.is_constant() else set()
+def nonzero_factors(r: Replay, key: tuple, compute, what: str, node: Node) -> set[str]:
+    """The irreducible factors of a projection polynomial, which must not be zero (once per check)."""
+    if key not in r.projections:
+        g = compute()
+        if g.is_zero():
+            raise Rejection("PROJECT", f"node {node.id}: a {what} is identically zero", node.line)
+        r.projections[key] = set(r.factors(g)) if not g.is_constant() else set()
+    return r.projections[key]
