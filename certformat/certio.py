@@ -11,6 +11,8 @@ import json
 import re
 from fractions import Fraction
 
+from flint import fmpz
+
 from .certificate import (NEG_INF, POS_INF, AtomClaim, Certificate, Inference, Interval,
                           Lemma, Literal, Node, Number, Poly, Root, Segment, VarDecl)
 from .errors import InputError, read_limited
@@ -29,6 +31,10 @@ _PATTERNS = {kind: re.compile(pattern) for kind, pattern in {
     "CID": "c[0-9]+", "ROOT": "p[0-9]+#[0-9]+", "HEX": "[0-9a-f]{64}", "KIND": "unsat|sat",
     "BOOL": "true|false", "ATOM": "a[0-9]+", "LIT": "[abd][0-9]+", "REL": "<=|>=|!=|<|>|=",
     "STRING": '".*"'}.items()}
+
+
+def _int(text: str) -> int:  # any length: CPython's int(str) refuses more than 4300 digits
+    return int(fmpz(text))
 
 
 class _Line:
@@ -88,8 +94,8 @@ class _Line:
 def _rational(ln: _Line) -> Fraction:
     """``("+" | "-")? INT ("/" INT)?``"""
     sign = ln.sign()
-    num = int(ln.take("INT"))
-    den = int(ln.take("INT")) if ln.takes("/") else 1
+    num = _int(ln.take("INT"))
+    den = _int(ln.take("INT")) if ln.takes("/") else 1
     if den == 0:
         raise ln.error("zero denominator")
     return sign * Fraction(num, den)
@@ -98,7 +104,7 @@ def _rational(ln: _Line) -> Fraction:
 def _power(ln: _Line) -> tuple[str, int]:
     """``(VAR | "z") ("^" INT)?``"""
     var = ln.takes("z") or ln.take("VAR")
-    return var, int(ln.take("INT")) if ln.takes("^") else 1
+    return var, _int(ln.take("INT")) if ln.takes("^") else 1
 
 
 def _polynomial(ln: _Line) -> list[tuple[int, list[tuple[str, int]]]]:
@@ -110,7 +116,7 @@ def _polynomial(ln: _Line) -> list[tuple[int, list[tuple[str, int]]]]:
         powers = [] if coeff is not None else [_power(ln)]
         while ln.takes("*"):
             powers.append(_power(ln))
-        terms.append((sign * int(coeff or 1), powers))
+        terms.append((sign * _int(coeff or "1"), powers))
         if ln.peek() not in ("+", "-"):
             return terms
         sign = -1 if ln.take(ln.peek()) == "-" else 1
@@ -122,7 +128,7 @@ def _monomials_to_poly(terms, nvars: int, ln: _Line) -> Poly:
     for coeff, powers in terms:
         exps = [0] * nvars
         for var, e in powers:
-            k = int(var[1:]) if var != "z" else 0
+            k = _int(var[1:]) if var != "z" else 0
             if var == "z" or not 1 <= k <= nvars:
                 raise InputError(f"variable {var} is not declared", ln.path, ln.line, construct=var)
             exps[k - 1] += e
@@ -158,7 +164,7 @@ def _bound(ln: _Line):
     if tok:
         return tok
     pid, j = ln.take("ROOT").split("#")
-    return Root(pid, int(j))
+    return Root(pid, _int(j))
 
 
 def _interval(ln: _Line) -> Interval:
@@ -184,20 +190,19 @@ def _declare(cert: Certificate, ln: _Line, ident: str) -> str:
 
 
 def _problem_hash(cert: Certificate, ln: _Line) -> None:
-    ln.take("sha256")
-    cert.sha256 = ln.take("HEX")
+    cert.sha256 = ln.take("sha256") and ln.take("HEX")     # "sha256", then the hash
 
 
 def _var(cert: Certificate, ln: _Line) -> None:
     ident = _declare(cert, ln, ln.take("VAR"))
     ln.take("=")
-    index = int(ln.take("INT"))
+    index = _int(ln.take("INT"))
     try:
         name = json.loads(ln.take("STRING"))
     except ValueError:
         ln.i -= 1
         raise ln.error("bad escape in the variable name") from None
-    cert.variables.append(VarDecl(int(ident[1:]), index, name, ln.line))
+    cert.variables.append(VarDecl(_int(ident[1:]), index, name, ln.line))
 
 
 def _poly(cert: Certificate, ln: _Line) -> None:
@@ -264,7 +269,7 @@ def _seg(cert: Certificate, ln: _Line) -> None:
 
 
 def _core(cert: Certificate, ln: _Line) -> None:
-    cert.core = tuple(int(k) for k in ln.take_all("INT"))
+    cert.core = tuple(_int(k) for k in ln.take_all("INT"))
 
 
 def _infer(cert: Certificate, ln: _Line) -> None:
@@ -277,13 +282,11 @@ def _infer(cert: Certificate, ln: _Line) -> None:
 
 
 def _value(cert: Certificate, ln: _Line) -> None:
-    var = ln.take("VAR")
-    cert.values[var] = ln.take("NID")
+    cert.values.update([(ln.take("VAR"), ln.take("NID"))])      # read left to right
 
 
 def _bool(cert: Certificate, ln: _Line) -> None:
-    index = int(ln.take("INT"))
-    cert.bools[index] = ln.take("BOOL") == "true"
+    cert.bools.update([(_int(ln.take("INT")), ln.take("BOOL") == "true")])
 
 
 _STATEMENTS = {"problem": _problem_hash, "var": _var, "poly": _poly, "num": _num,
@@ -305,7 +308,7 @@ def read_certificate(text: str, path: str = "<certificate>") -> Certificate:
             if keyword != "tessella":
                 raise InputError("certificate must start with 'tessella 1 unsat|sat'", path,
                                  number, 1, construct=keyword)
-            version, kind = int(ln.take("INT")), ln.take("KIND")
+            version, kind = _int(ln.take("INT")), ln.take("KIND")
             ln.end()
             if version != 1:
                 raise InputError(f"unsupported certificate version {version} (this checker "

@@ -9,6 +9,8 @@ from __future__ import annotations
 import json
 from fractions import Fraction
 
+from flint import fmpz
+
 from certformat.certificate import Certificate, Number, Poly, Segment
 
 
@@ -21,7 +23,7 @@ def poly_text(poly: Poly, var=lambda k: f"x{k + 1}") -> str:
         c = poly[exps]
         powers = [var(k) + (f"^{e}" if e > 1 else "") for k, e in enumerate(exps) if e]
         mag = abs(c)
-        body = "*".join(([str(mag)] if mag != 1 or not powers else []) + powers)
+        body = "*".join(([str(fmpz(mag))] if mag != 1 or not powers else []) + powers)
         out.append(("- " if c < 0 else "+ ") + body)
     text = " ".join(out)
     return text[2:] if text.startswith("+ ") else "-" + text[2:]
@@ -30,7 +32,8 @@ def poly_text(poly: Poly, var=lambda k: f"x{k + 1}") -> str:
 def rational_text(q: Fraction) -> str:
     """``p/q`` in lowest terms, or ``p`` for an integer."""
     q = Fraction(q)
-    return str(q.numerator) if q.denominator == 1 else f"{q.numerator}/{q.denominator}"
+    num, den = str(fmpz(q.numerator)), str(fmpz(q.denominator))     # any number of digits
+    return num if den == "1" else f"{num}/{den}"
 
 
 def number_text(num: Number) -> str:

@@ -7,6 +7,8 @@ from __future__ import annotations
 
 import re
 
+from flint import fmpz
+
 _PLAIN = re.compile(r"[A-Za-z_?.~!@$%&][A-Za-z0-9_?.~!@$%&']*")
 
 
@@ -19,7 +21,7 @@ def poly_to_text(poly, names) -> str:
         factors = [name if e == 1 else f"{name}^{e}" for name, e in zip(names, exponents) if e]
         magnitude = abs(coefficient)
         if magnitude != 1 or not factors:
-            factors.insert(0, str(magnitude))
+            factors.insert(0, str(fmpz(magnitude)))          # any number of digits
         sign = ("-" if coefficient < 0 else "") if not out else ("- " if coefficient < 0 else "+ ")
         out.append(sign + "*".join(factors))
     return " ".join(out) if out else "0"

@@ -101,3 +101,16 @@ def test_clausal_form_base_atoms_and_definitions():
     assert cf.definitions[:3] == [(-4, 2), (-4, 3), (4, -2, -3)]
     assert [cf.literal_name(v) for v in (1, -3, 4)] == ["a1", "~b1", "d1"]
     assert cf.variable_number("d2") == 5 and cf.variable_number("d3") is None
+
+
+def test_numbers_longer_than_cpython_int_text_limit_round_trip():
+    # CPython refuses int(str) beyond 4300 digits by default (common-practice fact, CPython 3.11
+    # release notes); certificates may carry longer coefficients within the checker's limits
+    big = 10 ** 5000 + 1
+    cert = Certificate("unsat", "0" * 64, [VarDecl(1, 1, "x")], polys={"p1": {(1,): -big, (0,): 3}},
+                       numbers={"n1": Number(None, Fraction(big, 7), Fraction(big, 7))})
+    text = write_certificate(cert)
+    again = read_certificate(text)
+    assert again.polys["p1"] == {(1,): -big, (0,): 3}
+    assert again.numbers["n1"].low == Fraction(big, 7)
+    assert write_certificate(again) == text
