@@ -15,7 +15,7 @@ with ``c`` a non-zero integer.  So ``R`` is never zero (its leading
 coefficient in ``z`` is a non-zero integer) and ``q(a)`` is a root of ``R``.
 
 **Sign at a point.**  Rational point: exact evaluation.  Otherwise an arb
-enclosure of ``q(a)`` (coordinates enclosed by bisection with exact sign
+enclosure of ``q(a)`` (coordinates narrowed by :func:`refine`, exact sign
 tests) decides the sign when it excludes zero.  Zero is decided only by the
 root-gap bound of SOUNDNESS.md (rule SIGN), computed from degrees and
 coefficient sizes without forming ``R`` (:func:`zero_bound`): every non-zero
