@@ -25,301 +25,220 @@ MAX_CERTIFICATE_BYTES = 256 * 1024 * 1024
 _TOKEN = re.compile(r'"(?:[^"\\\n]|\\["\\/bfnrtu])*"|[-+]inf\b|<=|>=|!=|<|>|='
                     r'|[A-Za-z0-9]+(?:#[0-9]+)?|[-+*^/@(),\[\]~]|%.*|[^ \t]')
 """Tokens: a string, an infinity, a relation, a word, a mark; then a comment; then any other
-character, which is an error."""
-_PATTERNS = {kind: re.compile(pattern) for kind, pattern in {
-    "INT": "[0-9]+", "VAR": "x[0-9]+", "PID": "p[0-9]+", "NID": "n[0-9]+", "LID": "L[0-9]+",
-    "CID": "c[0-9]+", "ROOT": "p[0-9]+#[0-9]+", "HEX": "[0-9a-f]{64}", "KIND": "unsat|sat",
-    "BOOL": "true|false", "ATOM": "a[0-9]+", "LIT": "[abd][0-9]+", "REL": "<=|>=|!=|<|>|=",
-    "STRING": '".*"'}.items()}
+character, which no statement accepts."""
+
+# The grammar of SPEC.md §10 as regular expressions over a line's tokens joined by one space.
+_INT, _POWER, _LIT = "[0-9]+", r"(?:x[0-9]+|z)(?: \^ [0-9]+)?", "(?:~ )?[abd][0-9]+"
+_RATIONAL = rf"(?:[-+] )?{_INT}(?: / {_INT})?"
+_BODY = rf"(?:{_INT}|{_POWER})(?: \* {_POWER})*"
+_POLY = rf"(?:[-+] )?{_BODY}(?: [-+] (?:[-+] )?{_BODY})*"
+_TERM = re.compile(rf" (?:([-+]) )?(?:([-+]) )?({_BODY})")
+_BOUND = r"-inf|\+inf|p[0-9]+#[0-9]+"
+_FORMS = {
+    "tessella": rf"tessella ({_INT}) (unsat|sat)",
+    "problem": "problem sha256 ([0-9a-f]{64})",
+    "var": rf'var x({_INT}) = ({_INT}) ("(?:[^"\\]|\\.)*")',
+    "poly": rf"poly (p[0-9]+) = ({_POLY})",
+    "num": rf"num (n[0-9]+) = (?:({_RATIONAL})|({_POLY}) @ \( ({_RATIONAL}) , ({_RATIONAL}) \))",
+    "atom": "atom (a[0-9]+) = (p[0-9]+) (<=|>=|!=|<|>|=) 0",
+    "lemma": rf"lemma (L[0-9]+) excludes ({_LIT}(?: {_LIT})*) by (c[0-9]+)",
+    "node": "node (c[0-9]+) sample (-|n[0-9]+(?: n[0-9]+)*)",
+    "seg": rf"seg (?:\[ ({_BOUND}) \]|\( ({_BOUND}) , ({_BOUND}) \)) at (n[0-9]+) "
+           rf"(?:by ({_LIT})|lift (c[0-9]+) keep((?: p[0-9]+)*))",
+    "core": "core((?: [0-9]+)*)",
+    "infer": rf"infer (false|{_LIT}(?: {_LIT})*)",
+    "value": "value (x[0-9]+) (n[0-9]+)",
+    "bool": rf"bool ({_INT}) (true|false)"}
+_STATEMENT = {keyword: re.compile(form) for keyword, form in _FORMS.items()}
 
 
 def _int(text: str) -> int:  # any length: CPython's int(str) refuses more than 4300 digits
     return int(fmpz(text))
 
 
-class _Line:
-    """The tokens of one statement line, read left to right (grammar: SPEC.md §10)."""
-
-    def __init__(self, text: str, path: str, line: int):
-        self.path, self.line, self.text, self.i = path, line, text, 0
-        self.tokens: list[str] = _TOKEN.findall(text)
-        for k, tok in enumerate(self.tokens):
-            if tok[0] == "%":
-                del self.tokens[k:]
-                break
-            if len(tok) == 1 and not tok.isalnum() and tok not in '-+*^/@(),[]~<>=':
-                self.i = k
-                raise self.error(f"unexpected character {tok!r}")
-
-    def error(self, message: str, column: int | None = None) -> InputError:
-        if column is None:
-            starts = [m.start() for m in _TOKEN.finditer(self.text)] + [len(self.text)]
-            column = starts[min(self.i, len(self.tokens))]
-        snippet = self.text.strip()[:60]
-        return InputError(f"certificate syntax error: {message} in {snippet!r}", self.path,
-                          self.line, column + 1, construct=snippet)
-
-    def peek(self) -> str | None:
-        return self.tokens[self.i] if self.i < len(self.tokens) else None
-
-    def takes(self, want: str) -> str | None:
-        """The next token if it is ``want`` (or matches the pattern so named), else None."""
-        if self.i < len(self.tokens):
-            tok, pattern = self.tokens[self.i], _PATTERNS.get(want)
-            if tok == want if pattern is None else pattern.fullmatch(tok):
-                self.i += 1
-                return tok
-        return None
-
-    def take(self, want: str) -> str:
-        """The next token, which must be ``want`` (or match the pattern so named)."""
-        tok = self.takes(want)
-        if tok is None:
-            raise self.error(f"expected {want}, found {self.peek() or 'end of line'!r}")
-        return tok
-
-    def take_all(self, want: str) -> list[str]:
-        """Every remaining token, each ``want``."""
-        return [self.take(want) for _ in range(len(self.tokens) - self.i)]
-
-    def sign(self) -> int:
-        """An optional ``+`` or ``-``, as 1 or -1."""
-        return -1 if (self.takes("-") or self.takes("+")) == "-" else 1
-
-    def end(self) -> None:
-        if self.peek() is not None:
-            raise self.error(f"unexpected {self.peek()!r}")
-
-
-def _rational(ln: _Line) -> Fraction:
+def _rational(text: str, line: _Where) -> Fraction:
     """``("+" | "-")? INT ("/" INT)?``"""
-    sign = ln.sign()
-    num = _int(ln.take("INT"))
-    den = _int(ln.take("INT")) if ln.takes("/") else 1
-    if den == 0:
-        raise ln.error("zero denominator")
-    return sign * Fraction(num, den)
+    sign = -1 if text[0] == "-" else 1
+    num, _, den = text.lstrip("+- ").partition(" / ")
+    if den and _int(den) == 0:
+        raise line.error("zero denominator")
+    return sign * Fraction(_int(num), _int(den or "1"))
 
 
-def _power(ln: _Line) -> tuple[str, int]:
-    """``(VAR | "z") ("^" INT)?``"""
-    var = ln.takes("z") or ln.take("VAR")
-    return var, _int(ln.take("INT")) if ln.takes("^") else 1
+def _terms(text: str) -> list[tuple[int, list[tuple[str, int]]]]:
+    """The terms (coefficient, [(variable, exponent)]) of a polynomial matched by ``_POLY``."""
+    terms = []
+    for first, second, body in _TERM.findall(" " + text):
+        factors = body.split(" * ")
+        coeff = _int(factors.pop(0)) if factors[0][0].isdigit() else 1
+        powers = [(var, _int(e or "1")) for var, _, e in (f.partition(" ^ ") for f in factors)]
+        terms.append((-coeff if (first == "-") != (second == "-") else coeff, powers))
+    return terms
 
 
-def _polynomial(ln: _Line) -> list[tuple[int, list[tuple[str, int]]]]:
-    """``term (("+" | "-") term)*``, ``term = ("+" | "-")? (INT | power) ("*" power)*``."""
-    terms, sign = [], 1
-    while True:
-        sign *= ln.sign()
-        coeff = ln.takes("INT")
-        powers = [] if coeff is not None else [_power(ln)]
-        while ln.takes("*"):
-            powers.append(_power(ln))
-        terms.append((sign * _int(coeff or "1"), powers))
-        if ln.peek() not in ("+", "-"):
-            return terms
-        sign = -1 if ln.take(ln.peek()) == "-" else 1
-
-
-def _monomials_to_poly(terms, nvars: int, ln: _Line) -> Poly:
+def _monomials_to_poly(text: str, nvars: int, line: _Where) -> Poly:
     """Sum the terms of a polynomial in x1 … xn into an exponent dictionary."""
     poly: Poly = {}
-    for coeff, powers in terms:
+    for coeff, powers in _terms(text):
         exps = [0] * nvars
         for var, e in powers:
             k = _int(var[1:]) if var != "z" else 0
-            if var == "z" or not 1 <= k <= nvars:
-                raise InputError(f"variable {var} is not declared", ln.path, ln.line, construct=var)
+            if not 1 <= k <= nvars:
+                raise line.error(f"variable {var} is not declared", var)
             exps[k - 1] += e
         key = tuple(exps)
         poly[key] = poly.get(key, 0) + coeff
     return {e: c for e, c in poly.items() if c != 0}
 
 
-def _univariate(terms, ln: _Line) -> tuple[int, ...]:
+def _univariate(text: str, line: _Where) -> tuple[int, ...]:
     """Coefficients (constant first) of a polynomial in z."""
     coeffs: dict[int, int] = {}
-    for coeff, powers in terms:
-        e = 0
-        for var, k in powers:
-            if var != "z":
-                raise InputError(f"number polynomial uses {var}; only z is allowed", ln.path,
-                                 ln.line, construct=var)
-            e += k
+    for coeff, powers in _terms(text):
+        if any(var != "z" for var, _ in powers):
+            raise line.error("a number polynomial may use only z", text)
+        e = sum(k for _, k in powers)
         coeffs[e] = coeffs.get(e, 0) + coeff
     top = max((e for e, c in coeffs.items() if c), default=-1)
     return tuple(coeffs.get(e, 0) for e in range(top + 1))
 
 
-def _literal(ln: _Line) -> Literal:
-    """``"~"? (aK | bK | dK)``"""
-    negated = ln.takes("~") is not None
-    return Literal(ln.take("LIT"), positive=not negated)
+def _literals(text: str) -> tuple[Literal, ...]:
+    """Each ``"~"? (aK | bK | dK)`` of a literal list matched by ``_LIT``."""
+    return tuple(Literal(w.lstrip("~"), positive=w[0] != "~") for w in text.replace("~ ", "~").split(" "))
 
 
-def _bound(ln: _Line):
+def _bound(text: str):
     """``-inf | +inf | pK#J``"""
-    tok = ln.takes(NEG_INF) or ln.takes(POS_INF)
-    if tok:
-        return tok
-    pid, j = ln.take("ROOT").split("#")
+    if text in (NEG_INF, POS_INF):
+        return text
+    pid, j = text.split("#")
     return Root(pid, _int(j))
 
 
-def _interval(ln: _Line) -> Interval:
-    """``"(" bound "," bound ")"`` (open) or ``"[" bound "]"`` (a point)."""
-    if ln.takes("["):
-        b = _bound(ln)
-        ln.take("]")
-        return Interval(b, b, point=True)
-    ln.take("(")
-    low = _bound(ln)
-    ln.take(",")
-    high = _bound(ln)
-    ln.take(")")
-    return Interval(low, high, point=False)
+class _Where:
+    """The file and line of a statement, for errors."""
+
+    def __init__(self, path: str, line: int, text: str):
+        self.path, self.line, self.text = path, line, text
+
+    def error(self, message: str, construct: str | None = None) -> InputError:
+        snippet = self.text.strip()[:60]
+        column = self.text.find(construct) + 1 if construct and construct in self.text else None
+        return InputError(f"certificate syntax error: {message} in {snippet!r}", self.path,
+                          self.line, column, construct=construct or snippet)
 
 
-def _declare(cert: Certificate, ln: _Line, ident: str) -> str:
+def _declare(cert: Certificate, line: _Where, ident: str) -> str:
     if ident in cert.lines:
-        raise InputError(f"{ident} is declared twice (first on line {cert.lines[ident]})",
-                         ln.path, ln.line, construct=ident)
-    cert.lines[ident] = ln.line
+        raise line.error(f"{ident} is declared twice (first on line {cert.lines[ident]})", ident)
+    cert.lines[ident] = line.line
     return ident
 
 
-def _problem_hash(cert: Certificate, ln: _Line) -> None:
-    cert.sha256 = ln.take("sha256") and ln.take("HEX")     # "sha256", then the hash
+def _problem_hash(cert: Certificate, m, line: _Where) -> None:
+    cert.sha256 = m[1]
 
 
-def _var(cert: Certificate, ln: _Line) -> None:
-    ident = _declare(cert, ln, ln.take("VAR"))
-    ln.take("=")
-    index = _int(ln.take("INT"))
+def _var(cert: Certificate, m, line: _Where) -> None:
+    _declare(cert, line, "x" + m[1])
     try:
-        name = json.loads(ln.take("STRING"))
+        name = json.loads(m[3])
     except ValueError:
-        ln.i -= 1
-        raise ln.error("bad escape in the variable name") from None
-    cert.variables.append(VarDecl(_int(ident[1:]), index, name, ln.line))
+        raise line.error("bad escape in the variable name", m[3]) from None
+    cert.variables.append(VarDecl(_int(m[1]), _int(m[2]), name, line.line))
 
 
-def _poly(cert: Certificate, ln: _Line) -> None:
-    ident = _declare(cert, ln, ln.take("PID"))
-    ln.take("=")
-    cert.polys[ident] = _monomials_to_poly(_polynomial(ln), len(cert.variables), ln)
+def _poly(cert: Certificate, m, line: _Where) -> None:
+    cert.polys[_declare(cert, line, m[1])] = _monomials_to_poly(m[2], len(cert.variables), line)
 
 
-def _num(cert: Certificate, ln: _Line) -> None:
-    ident = _declare(cert, ln, ln.take("NID"))
-    ln.take("=")
-    if "@" not in ln.tokens:
-        q = _rational(ln)
-        cert.numbers[ident] = Number(None, q, q, ln.line)
-        return
-    poly = _univariate(_polynomial(ln), ln)
-    ln.take("@")
-    ln.take("(")
-    low = _rational(ln)
-    ln.take(",")
-    high = _rational(ln)
-    ln.take(")")
-    cert.numbers[ident] = Number(poly, low, high, ln.line)
-
-
-def _atom(cert: Certificate, ln: _Line) -> None:
-    ident = _declare(cert, ln, ln.take("ATOM"))
-    ln.take("=")
-    pid, rel = ln.take("PID"), ln.take("REL")
-    ln.take("0")
-    cert.atoms[ident] = AtomClaim(pid, rel, ln.line)
-
-
-def _lemma(cert: Certificate, ln: _Line) -> None:
-    ident = _declare(cert, ln, ln.take("LID"))
-    ln.take("excludes")
-    literals = [_literal(ln)]
-    while not ln.takes("by"):
-        literals.append(_literal(ln))
-    cert.lemmas.append(Lemma(ident, tuple(literals), ln.take("CID"), ln.line))
-
-
-def _node(cert: Certificate, ln: _Line) -> None:
-    ident = _declare(cert, ln, ln.take("CID"))
-    ln.take("sample")
-    sample = () if ln.takes("-") else (ln.take("NID"), *ln.take_all("NID"))
-    cert.nodes[ident] = Node(ident, sample, [], ln.line)
-
-
-def _seg(cert: Certificate, ln: _Line) -> None:
-    if not cert.nodes:
-        raise InputError("'seg' before any 'node'", ln.path, ln.line, construct="seg")
-    interval = _interval(ln)
-    ln.take("at")
-    seg = Segment(interval, ln.take("NID"), line=ln.line)
-    if ln.takes("by"):
-        seg.literal = _literal(ln)
+def _num(cert: Certificate, m, line: _Where) -> None:
+    ident = _declare(cert, line, m[1])
+    if m[2] is not None:
+        q = _rational(m[2], line)
+        cert.numbers[ident] = Number(None, q, q, line.line)
     else:
-        ln.take("lift")
-        seg.child = ln.take("CID")
-        ln.take("keep")
-        seg.keep = tuple(ln.take_all("PID"))
+        cert.numbers[ident] = Number(_univariate(m[3], line), _rational(m[4], line),
+                                     _rational(m[5], line), line.line)
+
+
+def _atom(cert: Certificate, m, line: _Where) -> None:
+    cert.atoms[_declare(cert, line, m[1])] = AtomClaim(m[2], m[3], line.line)
+
+
+def _lemma(cert: Certificate, m, line: _Where) -> None:
+    cert.lemmas.append(Lemma(_declare(cert, line, m[1]), _literals(m[2]), m[3], line.line))
+
+
+def _node(cert: Certificate, m, line: _Where) -> None:
+    ident = _declare(cert, line, m[1])
+    cert.nodes[ident] = Node(ident, () if m[2] == "-" else tuple(m[2].split(" ")), [], line.line)
+
+
+def _seg(cert: Certificate, m, line: _Where) -> None:
+    if not cert.nodes:
+        raise line.error("'seg' before any 'node'", "seg")
+    if m[1] is not None:
+        interval = Interval(_bound(m[1]), _bound(m[1]), point=True)
+    else:
+        interval = Interval(_bound(m[2]), _bound(m[3]), point=False)
+    seg = Segment(interval, m[4], line=line.line)
+    if m[5] is not None:
+        seg.literal = _literals(m[5])[0]
+    else:
+        seg.child, seg.keep = m[6], tuple(m[7].split())
     next(reversed(cert.nodes.values())).segments.append(seg)
 
 
-def _core(cert: Certificate, ln: _Line) -> None:
-    cert.core = tuple(_int(k) for k in ln.take_all("INT"))
+def _core(cert: Certificate, m, line: _Where) -> None:
+    cert.core = tuple(_int(k) for k in m[1].split())
 
 
-def _infer(cert: Certificate, ln: _Line) -> None:
-    literals = []
-    if not ln.takes("false"):
-        literals.append(_literal(ln))
-        while ln.peek() is not None:
-            literals.append(_literal(ln))
-    cert.steps.append(Inference(tuple(literals), ln.line))
+def _infer(cert: Certificate, m, line: _Where) -> None:
+    cert.steps.append(Inference(() if m[1] == "false" else _literals(m[1]), line.line))
 
 
-def _value(cert: Certificate, ln: _Line) -> None:
-    cert.values.update([(ln.take("VAR"), ln.take("NID"))])      # read left to right
+def _value(cert: Certificate, m, line: _Where) -> None:
+    cert.values[m[1]] = m[2]
 
 
-def _bool(cert: Certificate, ln: _Line) -> None:
-    cert.bools.update([(_int(ln.take("INT")), ln.take("BOOL") == "true")])
+def _bool(cert: Certificate, m, line: _Where) -> None:
+    cert.bools[_int(m[1])] = m[2] == "true"
 
 
-_STATEMENTS = {"problem": _problem_hash, "var": _var, "poly": _poly, "num": _num,
-               "atom": _atom, "lemma": _lemma, "node": _node, "seg": _seg, "core": _core,
-               "infer": _infer, "value": _value, "bool": _bool}
+_READERS = {"problem": _problem_hash, "var": _var, "poly": _poly, "num": _num, "atom": _atom,
+            "lemma": _lemma, "node": _node, "seg": _seg, "core": _core, "infer": _infer,
+            "value": _value, "bool": _bool}
 
 
 def read_certificate(text: str, path: str = "<certificate>") -> Certificate:
     """Parse certificate text into the data model, one statement per line; InputError names
-    the line and column.  Ids must be declared once; whether claims hold is the checker's job."""
+    the line.  Ids must be declared once; whether claims hold is the checker's job."""
     cert = None
     for number, raw in enumerate(text.split("\n"), 1):
-        ln = _Line(raw[:-1] if raw.endswith("\r") else raw, path, number)
-        if not ln.tokens:
+        raw = raw[:-1] if raw.endswith("\r") else raw
+        tokens = _TOKEN.findall(raw)
+        if tokens and tokens[-1][0] == "%":
+            tokens.pop()
+        if not tokens:
             continue
-        keyword = ln.tokens[0]
-        ln.i = 1
+        line, keyword = _Where(path, number, raw), tokens[0]
+        if cert is None and keyword != "tessella":
+            raise line.error("a certificate must start with 'tessella 1 unsat|sat'", keyword)
+        if keyword not in _READERS and (keyword != "tessella" or cert is not None):
+            raise line.error(f"unknown statement {keyword!r}", keyword)
+        m = _STATEMENT[keyword].fullmatch(" ".join(tokens))
+        if m is None:
+            bad = [t for t in tokens if len(t) == 1 and t not in "-+*^/@(),[]~<>=" and not t.isalnum()]
+            raise line.error(f"unexpected character {bad[0]!r}", bad[0]) if bad else \
+                line.error(f"malformed '{keyword}' statement (grammar: SPEC.md §10)", keyword)
         if cert is None:
-            if keyword != "tessella":
-                raise InputError("certificate must start with 'tessella 1 unsat|sat'", path,
-                                 number, 1, construct=keyword)
-            version, kind = _int(ln.take("INT")), ln.take("KIND")
-            ln.end()
-            if version != 1:
-                raise InputError(f"unsupported certificate version {version} (this checker "
-                                 "reads 1)", path, number)
-            cert = Certificate(kind=kind, sha256="", variables=[], version=version)
-            continue
-        if keyword not in _STATEMENTS:
-            ln.i = 0
-            raise ln.error(f"unknown statement {keyword!r}")
-        _STATEMENTS[keyword](cert, ln)
-        ln.end()
+            if _int(m[1]) != 1:
+                raise line.error(f"unsupported certificate version {m[1]} (this checker reads 1)", m[1])
+            cert = Certificate(kind=m[2], sha256="", variables=[], version=1)
+        else:
+            _READERS[keyword](cert, m, line)
     if cert is None:
         raise InputError("certificate must start with 'tessella 1 unsat|sat'", path, 1)
     return cert

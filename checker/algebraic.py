@@ -2,7 +2,7 @@
 
 A real algebraic number is a defining integer polynomial with an isolating
 rational interval (:class:`RealAlgebraic`).  Everything here is decided by exact
-rational arithmetic; an ``arb`` ball is only ever *produced* (:func:`enclosure`),
+rational arithmetic; an ``arb`` ball is only ever *produced* (:func:`ball`),
 never consulted to decide.
 
 Algorithms, each with the theorem it rests on:
@@ -22,13 +22,13 @@ Algorithms, each with the theorem it rests on:
   roots and nowhere else; with exactly one root in ``(low, high)`` the sign at
   the midpoint tells which half holds it (intermediate value theorem).
 * **Isolation** -- a quadratic by its closed form (:func:`isolate_quadratic`).
-  Otherwise all real roots lie in ``(-B, B)`` with Cauchy's bound
-  ``B = 1 + max_i |a_i / a_n|`` (Cauchy 1829).  Candidate intervals come from
-  Arb's complex root enclosures (a hint only); they are accepted when ``g``
-  changes sign across each (so each holds a root), they are disjoint, and their
-  number equals the Sturm count on ``(-B, B)`` -- then each holds exactly one
-  and together they hold every real root.  Otherwise ``(-B, B)`` is split by Sturm counts until each interval
-  holds one root.
+  Otherwise all complex roots lie in ``|z| < B`` (Fujiwara's bound,
+  :func:`root_bound`), and ``(-B, B)`` is halved until each piece has 0 or 1
+  sign variations by Descartes' rule of signs after the Möbius map of the piece
+  onto ``(0, oo)`` (:func:`descartes_bound`; Collins and Akritas 1976).  For a
+  squarefree polynomial this ends (Vincent's theorem; Alesina and Galuzzi 1998).
+* **Refinement** -- Newton's iterates only *suggest* a narrow interval; it is
+  used when ``g`` changes sign across it, otherwise the interval is halved.
 * **Equality** -- two irreducible primitive polynomials with a common root are
   equal up to sign (the minimal polynomial is unique), so two numbers are equal
   iff their minimal forms share the polynomial and a root in the intersection
@@ -40,7 +40,7 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from functools import cmp_to_key
 
-from flint import arb, ctx, fmpq, fmpq_poly, fmpz, fmpz_poly
+from flint import arb, fmpq, fmpq_poly, fmpz, fmpz_poly
 
 
 class KernelError(Exception):
@@ -122,10 +122,21 @@ def count_roots(seq: list[fmpq_poly], a: fmpq, b: fmpq) -> int:
     return sign_changes(seq, a) - sign_changes(seq, b)
 
 
-def cauchy_bound(p: fmpz_poly) -> fmpq:
-    """1 + max |a_i / a_n|: every complex root of p is strictly smaller in modulus (Cauchy)."""
-    *lower, lead = p.coeffs()
-    return 1 + max((fmpq(abs(c), abs(lead)) for c in lower), default=fmpq(0))
+def root_bound(g: fmpz_poly) -> fmpz:
+    """2^(1 + max(0, e_i)), e_i = ceil((bits(a_(n-i)) - bits(a_n) + 1) / i), so |a_(n-i) / a_n|^(1/i) < 2^e_i: every
+    complex root of g is strictly smaller in modulus (Fujiwara's bound 2 max_i |a_(n-i) / a_n|^(1/i); Fujiwara 1916)."""
+    *lower, lead = g.coeffs()
+    n, top = len(lower), int(abs(lead).bit_length())
+    e = max((-((top - 1 - int(abs(c).bit_length())) // (n - i)) for i, c in enumerate(lower) if c), default=0)
+    return fmpz(2) ** (1 + max(e, 0))
+
+
+def descartes_bound(g: fmpz_poly, a: fmpq, b: fmpq) -> int:
+    """Sign variations of (1 + x)^n g((a + bx) / (1 + x)), n = deg g: x > 0 maps onto (a, b), so this bounds the roots
+    of g in (a, b), counted with multiplicity, and has their parity (Descartes' rule of signs); 1 means exactly one."""
+    shifted = fmpq_poly(g)(fmpq_poly([a, b - a]))
+    signs = [c > 0 for c in fmpq_poly(shifted.coeffs()[::-1])(fmpq_poly([1, 1])).coeffs() if c != 0]
+    return sum(1 for u, v in zip(signs, signs[1:]) if u != v)
 
 
 def check_isolating(a: RealAlgebraic) -> None:
@@ -178,29 +189,36 @@ def _halve(a: RealAlgebraic) -> RealAlgebraic:
 
 
 def refine(a: RealAlgebraic, width: fmpq) -> RealAlgebraic:
-    """`a` in minimal form, its interval no wider than `width`: around an Arb hint if g changes sign there, else by bisection."""
+    """`a` in minimal form, its interval no wider than `width`: around a Newton hint if g changes sign there, else by bisection."""
     a = reduced(a)
-    if a.high - a.low > width and not a.is_rational():
-        with ctx.workprec(max(64, int(width.q).bit_length() - int(width.p).bit_length() + 32)):
-            for low, high in _hinted_intervals(a.poly, width / 8):
-                low, high = max(low, a.low), min(high, a.high)
-                if low < high <= low + width and _sign(a.poly(low)) * _sign(a.poly(high)) < 0:
-                    a = RealAlgebraic(a.poly, low, high, a.minimal)
-    while a.high - a.low > width:
+    while a.high - a.low > width and not a.is_rational():
+        hint = _newton_hint(a, width)
+        low, high = (max(hint - width / 2, a.low), min(hint + width / 2, a.high)) if hint is not None else (0, 0)
+        if low < high and _sign(a.poly(low)) * _sign(a.poly(high)) < 0:
+            return RealAlgebraic(a.poly, low, high, a.minimal)
         a = _halve(a)
     return a
+
+
+def _newton_hint(a: RealAlgebraic, width: fmpq) -> fmpq | None:
+    """Newton's iterates for a.poly from the midpoint, rounded to multiples of width / 4 (a hint, never a decision)."""
+    x, unit, derivative = (a.low + a.high) / 2, width / 4, a.poly.derivative()
+    for _ in range(int(width.q).bit_length().bit_length() + 4):
+        slope = derivative(x)
+        if slope == 0:
+            return None
+        step = a.poly(x) / slope
+        x = fmpq((x - step) / unit).floor() * unit
+        if not a.low < x < a.high:
+            return None
+        if abs(step) < unit:
+            return x
+    return None
 
 
 def ball(a: RealAlgebraic) -> arb:
     """An arb ball containing the closed interval [a.low, a.high] (at the current working precision)."""
     return arb(a.low).union(arb(a.high))
-
-
-def enclosure(a: RealAlgebraic, prec: int) -> arb:
-    """A rigorous ball of radius about 2^-prec containing `a`, by bisection with exact sign tests."""
-    a = refine(a, fmpq(1, 2 ** prec))
-    with ctx.workprec(prec + 16):
-        return ball(a)
 
 
 # --------------------------------------------------------------------------
@@ -233,24 +251,19 @@ def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:
 
 
 def isolate(g: fmpz_poly) -> list[RealAlgebraic]:
-    """Isolating intervals for the real roots of g, irreducible of degree >= 2 (module docstring: Isolation)."""
+    """Isolating intervals, increasing, for the real roots of g, irreducible of degree >= 2 (module docstring: Isolation)."""
     if g.degree() == 2:
         return isolate_quadratic(g)
-    seq = sturm_sequence(fmpq_poly(g))
-    bound = cauchy_bound(g)
-    total = count_roots(seq, -bound, bound)
-    hinted = sorted((l, h) for l, h in _hinted_intervals(g) if -bound < l and h < bound)
-    if len(hinted) == total and all(h <= l for (_, h), (l, _) in zip(hinted, hinted[1:])):
-        return [RealAlgebraic(g, low, high, minimal=True) for low, high in hinted]
+    bound = fmpq(root_bound(g))
     pending, found = [(-bound, bound)], []
     while pending:
         low, high = pending.pop()
-        n = count_roots(seq, low, high)
+        n = descartes_bound(g, low, high)
         if n == 1:
             found.append(RealAlgebraic(g, low, high, minimal=True))
         elif n > 1:
             mid = (low + high) / 2
-            pending += [(low, mid), (mid, high)]
+            pending += [(mid, high), (low, mid)]
     return found
 
 
@@ -267,20 +280,6 @@ def isolate_quadratic(g: fmpz_poly) -> list[RealAlgebraic]:
     ends = sorted(fmpq((-b << 64) + d, a << 65) for d in (-s - 1, -s, s, s + 1))
     return [RealAlgebraic(g, ends[0], ends[1], minimal=True),
             RealAlgebraic(g, ends[2], ends[3], minimal=True)]
-
-
-def _hinted_intervals(g: fmpz_poly, pad: fmpq = fmpq(1, 2 ** 64)) -> list[tuple[fmpq, fmpq]]:
-    """Rational intervals around Arb's real root enclosures (padded) where g changes sign, so each holds a root."""
-    out = []
-    for z, _ in g.complex_roots():
-        if not z.imag == 0:
-            continue
-        mid, rad = z.real.mid().man_exp(), z.real.rad().man_exp()
-        centre = fmpq(mid[0]) * fmpq(2) ** int(mid[1])
-        radius = 2 * fmpq(rad[0]) * fmpq(2) ** int(rad[1]) + pad
-        if _sign(g(centre - radius)) * _sign(g(centre + radius)) < 0:
-            out.append((centre - radius, centre + radius))
-    return out
 
 
 def real_roots(f: fmpz_poly) -> list[RealAlgebraic]:

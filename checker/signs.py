@@ -46,7 +46,7 @@ from typing import Sequence
 
 from flint import arb, ctx, fmpq, fmpz_mpoly, fmpz_mpoly_ctx, fmpz_poly
 
-from .algebraic import KernelError, RealAlgebraic, ball, cauchy_bound, real_roots, reduced, refine
+from .algebraic import KernelError, RealAlgebraic, ball, real_roots, reduced, refine, root_bound
 from .polys import coefficients_in
 
 
@@ -104,7 +104,7 @@ def zero_bound(q: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpq:
     degs = q.degrees()
     occurring = [(i, a.poly) for i, a in enumerate(point) if degs[i] > 0]
     D = prod(d.degree() for _, d in occurring)
-    B = {i: cauchy_bound(d) for i, d in occurring}
+    B = {i: fmpq(root_bound(d)) for i, d in occurring}
     Q = sum(abs(c) * prod(B[i] ** e[i] for i in B) for e, c in q.terms())
     C = prod(abs(d.coeffs()[-1]) ** (degs[i] * D // d.degree()) for i, d in occurring)
     return 1 / (1 + C * (1 + Q) ** D)

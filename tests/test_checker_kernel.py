@@ -16,8 +16,8 @@ from hypothesis import strategies as st
 
 from certformat.formula import poly_context
 from checker.algebraic import (
-    KernelError, RealAlgebraic, cauchy_bound, check_isolating, compare, count_roots,
-    enclosure, isolate_quadratic, real_roots, reduced, refine, squarefree_part, sturm_sequence,
+    KernelError, RealAlgebraic, root_bound, check_isolating, compare, count_roots,
+    ball, isolate_quadratic, real_roots, reduced, refine, squarefree_part, sturm_sequence,
 )
 from checker.signs import _eliminate, is_nullified, real_roots_at, sign_at
 
@@ -104,9 +104,26 @@ def test_sturm_sequence_worked_example():
     assert count_roots(seq, fmpq(1, 2), fmpq(3, 4)) == 0
 
 
-def test_cauchy_bound_worked_example():
-    # Cauchy's bound 1 + max|a_i/a_n| computed by hand: 2x^2 - 6x + 1 -> 1 + 6/2 = 4
-    assert cauchy_bound(fmpz_poly([1, -6, 2])) == 4
+def test_root_bound_worked_example():
+    # Fujiwara's bound rounded up to a power of two, by hand: 2x^2 - 6x + 1: |-6/2| = 3 < 2^2,
+    # |1/2|^(1/2) < 2^0, so 2^(1+2) = 8 (the roots are (3 ± sqrt 7)/2, below 2.83; arithmetic)
+    assert root_bound(fmpz_poly([1, -6, 2])) == 8
+    # x^3 - 1000: 1000^(1/3) = 10 < 2^4 (|1000| < 2^10, ceil(11/3) = 4), so 2^5 = 32 > 10
+    assert root_bound(fmpz_poly([-1000, 0, 0, 1])) == 32
+
+
+@pytest.mark.parametrize("coeffs", [[-2, 0, 0, 1], [-31250000000000, 3750000000, -225000, 9],
+                                    [1, -5, 0, 0, 0, 1], [-1, 1, 1, 0, 0, 0, 0, 1]])
+def test_isolation_agrees_with_sympy(coeffs):
+    # sympy's real_roots as the reference library: same count, each inside its interval, increasing
+    import sympy
+    found = real_roots(fmpz_poly(coeffs))
+    z = sympy.Symbol("z")
+    ref = sympy.Poly(list(reversed(coeffs)), z).real_roots()
+    assert len(found) == len(ref)
+    for r, expected in zip(found, ref):
+        assert sympy.Rational(int(r.low.p), int(r.low.q)) < expected < sympy.Rational(int(r.high.p), int(r.high.q))
+        assert root_bound(r.poly) > abs(sympy.N(expected, 30))
 
 
 def test_sqrt2_against_convergent():
@@ -265,16 +282,15 @@ def test_variable_discipline():
     assert real_roots_at(x0 - 1, [SQRT2[0]]) == []     # free of x1, non-zero there: no roots
 
 
-def test_enclosure_is_rigorous_and_tight():
+def test_refinement_is_rigorous_and_tight():
     from flint import ctx
-    for prec in (10, 53, 100, 300):
-        b = enclosure(SQRT2_SQUARED_DEF[0], prec)
-        assert b.rad() < arb(2) ** (-prec + 1)
-        with ctx.workprec(prec + 64):
-            assert b.overlaps(arb(2).sqrt())     # python-flint's own arb square root as reference
+    for prec in (10, 53, 100, 300, 2000):
         r = refine(SQRT2_SQUARED_DEF[0], fmpq(1, 2 ** prec))
+        assert r.high - r.low <= fmpq(1, 2 ** prec)
         assert r.low ** 2 < 2 < r.high ** 2      # exact: low < sqrt 2 < high
-    assert enclosure(HALF[0], 20).contains(arb(0.5))
+        with ctx.workprec(prec + 64):
+            assert ball(r).overlaps(arb(2).sqrt())     # python-flint's own arb square root as reference
+    assert refine(HALF[0], fmpq(1, 2 ** 20)) == HALF[0]
 
 
 # --------------------------------------------------------------------------
