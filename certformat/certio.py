@@ -53,7 +53,7 @@ _STATEMENT = {keyword: re.compile(form) for keyword, form in _FORMS.items()}
 
 
 def _int(text: str) -> int:  # any length: CPython's int(str) refuses more than 4300 digits
-    return int(fmpz(text))
+    return int(text) if len(text) < 4000 else int(fmpz(text))
 
 
 def _rational(text: str, line: _Where) -> Fraction:

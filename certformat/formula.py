@@ -18,6 +18,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from fractions import Fraction
+from functools import cache
 
 from flint import fmpz, fmpz_mpoly, fmpz_mpoly_ctx
 
@@ -30,6 +31,7 @@ MIRRORED = {"<": ">", "<=": ">=", "=": "=", "!=": "!=", ">=": "<=", ">": "<"}
 """The relation of ``(-p) ⋈' 0`` equivalent to ``p ⋈ 0``."""
 
 
+@cache
 def poly_context(nvars: int) -> fmpz_mpoly_ctx:
     """The flint context of polynomials in ``x0 .. x(nvars-1)``, lex order."""
     return fmpz_mpoly_ctx.get(tuple(f"x{i}" for i in range(max(nvars, 1))), "lex")

@@ -124,7 +124,7 @@ def atom_literals(problem: Problem, cert: Certificate, cf: ClausalForm, order: l
             raise Rejection("ATOM", f"polynomial {claim.poly} is not declared", claim.line)
         atom = cf.atoms[k - 1]
         mine = P.permuted(atom.poly, order) if order else atom.poly
-        if P.key(mine) != P.key(polys[claim.poly]) or atom.rel != claim.rel:
+        if mine != polys[claim.poly] or atom.rel != claim.rel:
             raise Rejection("ATOM", f"{aid} is not the problem's atom {k}", claim.line)
         out[aid] = (polys[claim.poly], atom.rel)
         out["~" + aid] = (polys[claim.poly], NEGATED[atom.rel])

@@ -10,15 +10,15 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from itertools import combinations
 
-from flint import fmpz_mpoly
+from flint import fmpq_poly, fmpz_mpoly
 
 from certformat.certificate import NEG_INF, POS_INF, Certificate, Lemma, Node, Segment
 from certformat.formula import relation_holds
 
 from . import polys as P
-from .algebraic import KernelError, RealAlgebraic, compare
+from .algebraic import KernelError, RealAlgebraic, _sign, compare, real_roots
 from .limits import Limits, Rejection
-from .signs import is_nullified, real_roots_at, sign_at
+from .signs import at_rational_point, is_nullified, real_roots_at, sign_at
 
 
 @dataclass
@@ -33,12 +33,26 @@ class Replay:
     limits: Limits = field(default_factory=Limits)
     factor_memo: dict[str, dict] = field(default_factory=dict)
     projections: dict[tuple, set] = field(default_factory=dict)
+    seen: dict[int, tuple] = field(default_factory=dict)
+
+    def _of(self, f: fmpz_mpoly) -> tuple:
+        """(f, P.key(f), P.level(f)), once per object in this check (the entry keeps f alive, so
+        its id stays its own)."""
+        if id(f) not in self.seen:
+            self.seen[id(f)] = (f, P.key(f), P.level(f))
+        return self.seen[id(f)]
+
+    def key(self, f: fmpz_mpoly) -> str:
+        return self._of(f)[1]
+
+    def level(self, f: fmpz_mpoly) -> int:
+        return self._of(f)[2]
 
     def factors(self, f: fmpz_mpoly) -> dict[str, fmpz_mpoly]:
         """Irreducible factors of f by their keys, each factorization done once per check."""
-        k = P.key(f)
+        k = self.key(f)
         if k not in self.factor_memo:
-            self.factor_memo[k] = {P.key(g): g for g in P.irreducible_factors(f)}
+            self.factor_memo[k] = {self.key(g): g for g in P.irreducible_factors(f)}
         return self.factor_memo[k]
 
     @property
@@ -74,7 +88,7 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
     require_sample_degree(r, sample, node.line)
     if not node.segments:
         raise Rejection("COVER", f"node {node.id} has no intervals", node.line)
-    here = AtSample(sample)
+    here = AtSample(sample, r.key)
     realized = [realize_interval(r, seg, here, level) for seg in node.segments]
     require_covers_line(realized, node)
     relevant: list[fmpz_mpoly] = []
@@ -93,26 +107,50 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
 
 
 class AtSample:
-    """Signs, nullification and real roots over one node's sample, each computed once per node."""
+    """Signs, nullification and real roots over one node's sample, each computed once per node;
+    at a rational sample all from the substituted polynomial (SOUNDNESS.md, ROOTS)."""
 
-    def __init__(self, sample):
-        self.sample = sample
+    def __init__(self, sample, key):
+        self.sample, self.key = sample, key
         self.memo: dict[tuple, object] = {}
+        self.rational = all(a.is_rational() for a in sample)
 
     def _once(self, rule, f: fmpz_mpoly):
-        k = (rule, P.key(f))
+        k = (rule, self.key(f))
         if k not in self.memo:
             self.memo[k] = rule(f, self.sample)
         return self.memo[k]
 
+    def _substituted(self, f: fmpz_mpoly, sample) -> fmpq_poly:
+        return at_rational_point(f, [a.low for a in sample])
+
+    def _substituted_roots(self, f: fmpz_mpoly, sample) -> list[RealAlgebraic]:
+        u = self._once(self._substituted, f)
+        if u.is_zero():
+            raise KernelError(f"{f} vanishes identically at the sample")
+        return real_roots(u.numer())
+
     def roots(self, f: fmpz_mpoly) -> list[RealAlgebraic]:
-        return self._once(real_roots_at, f)
+        return self._once(self._substituted_roots if self.rational else real_roots_at, f)
 
     def sign(self, f: fmpz_mpoly) -> int:
-        return self._once(sign_at, f)
+        """The sign of f, which involves only the sample's variables, at the sample."""
+        if not self.rational:
+            return self._once(sign_at, f)
+        u = self._once(self._substituted, f)
+        if u.degree() > 0:
+            raise KernelError(f"{f} involves a variable beyond the sample")
+        return _sign(u[0])
+
+    def sign_next(self, f: fmpz_mpoly, t: RealAlgebraic) -> int:
+        """The sign of f at the sample extended by t."""
+        if self.rational and t.is_rational():
+            return _sign(self._once(self._substituted, f)(t.low))
+        return sign_at(f, self.sample + (t,))
 
     def nullified(self, f: fmpz_mpoly) -> bool:
-        return self._once(is_nullified, f)
+        return self._once(self._substituted, f).is_zero() if self.rational else \
+            self._once(is_nullified, f)
 
 
 def number(r: Replay, nid: str, line: int) -> RealAlgebraic:
@@ -139,7 +177,7 @@ def bound_value(r: Replay, bound, here: AtSample, level: int, line: int):
     if bound.poly not in r.polys:
         raise Rejection("BOUND", f"polynomial {bound.poly} is not declared", line)
     q = r.polys[bound.poly]
-    if P.level(q) > level:
+    if r.level(q) > level:
         raise Rejection("BOUND", f"{bound.poly} involves a variable after x{level}", line)
     try:
         roots = here.roots(q)
@@ -216,19 +254,18 @@ def check_direct(r: Replay, seg: Segment, here: AtSample, level: int, t, low, hi
     if text not in r.literals:
         raise Rejection("DIRECT", f"literal {text} is not a literal of this lemma", seg.line)
     p, rel = r.literals[text]
-    if P.level(p) > level:
+    if r.level(p) > level:
         raise Rejection("DIRECT", f"{text} involves a variable after x{level}", seg.line)
-    sample = here.sample
     if here.nullified(p):
         return check_nullified(r, seg, p, rel, level, up)
-    roots = here.roots(p) if P.level(p) == level else []
+    roots = here.roots(p) if r.level(p) == level else []
     if seg.interval.point:
         on_root = any(compare(z, low) == 0 for z in roots)
-        value_sign = 0 if on_root else sign_at(p, sample + (low,))
+        value_sign = 0 if on_root else here.sign_next(p, low)
     else:
         if any(less(low, z) and less(z, high) for z in roots):
             raise Rejection("DIRECT", f"{text} has a root inside {seg.interval}", seg.line)
-        value_sign = sign_at(p, sample + (t,))
+        value_sign = here.sign_next(p, t)
     if relation_holds(rel, value_sign):
         raise Rejection("DIRECT", f"{text} holds on {seg.interval} (sign {value_sign})", seg.line)
     return [p]
@@ -258,7 +295,7 @@ def check_lift(r: Replay, seg: Segment, node: Node, here: AtSample, level: int, 
     for pid in seg.keep:
         if pid not in r.polys:
             raise Rejection("LIFT", f"polynomial {pid} is not declared", seg.line)
-        if P.level(r.polys[pid]) > level:
+        if r.level(r.polys[pid]) > level:
             raise Rejection("LIFT", f"declared {pid} involves a variable after x{level}", seg.line)
         if not r.polys[pid].is_constant():
             declared.update(r.factors(r.polys[pid]))
@@ -268,7 +305,7 @@ def check_lift(r: Replay, seg: Segment, node: Node, here: AtSample, level: int, 
         raise Rejection("PROJECT", f"projection not declared: {len(missing)} polynomial(s) that "
                         f"node {child.id} passes up are missing from 'keep'", seg.line)
     require_nearest_roots(seg, here, t, low, high,
-                          [f for f in declared.values() if P.level(f) == level])
+                          [f for f in declared.values() if r.level(f) == level])
     return list(declared.values())
 
 
@@ -309,7 +346,7 @@ def project(r: Replay, relevant: list, here: AtSample, level: int, node: Node) -
     up: set[str] = set()
     for g in relevant:
         for k, f in r.factors(g).items():
-            if P.level(f) == level:
+            if r.level(f) == level:
                 main.setdefault(k, f)
             else:
                 up.add(k)

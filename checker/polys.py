@@ -25,7 +25,7 @@ def to_flint(poly: dict[tuple[int, ...], int], nvars: int) -> fmpz_mpoly:
 def permuted(poly: fmpz_mpoly, order: list[int]) -> fmpz_mpoly:
     """Rename problem variable ``order[k]`` to certificate variable ``k`` (0-based)."""
     ctx = poly.context()
-    return ctx.from_dict({tuple(e[j] for j in order): c for e, c in poly.to_dict().items()})
+    return ctx.from_dict({tuple(e[j] for j in order): c for e, c in zip(poly.monoms(), poly.coeffs())})
 
 
 def level(f: fmpz_mpoly) -> int:
@@ -46,7 +46,7 @@ def normalized(f: fmpz_mpoly) -> fmpz_mpoly:
     """``f`` made primitive with positive leading coefficient (lex), as atoms are."""
     c = f.content()
     if c != 1:
-        f = f.context().from_dict({e: v // c for e, v in f.to_dict().items()})
+        f = f // c
     return -f if f.leading_coefficient() < 0 else f
 
 
@@ -55,6 +55,8 @@ def irreducible_factors(f: fmpz_mpoly) -> list[fmpz_mpoly]:
     over Q when python-flint 0.9's integer one overflows sorting huge coefficients)."""
     if f.is_zero():
         raise ValueError("factorization of the zero polynomial")
+    if f.total_degree() == 1:            # of total degree 1: irreducible (a factor would be constant)
+        return [normalized(f)]
     try:
         factors = [g for g, _ in f.factor()[1]]
     except OverflowError:
@@ -73,7 +75,7 @@ def coefficients_in(f: fmpz_mpoly, var: int) -> list[fmpz_mpoly]:
     """Coefficients of ``f`` as a polynomial in variable ``var``, leading one first."""
     ctx = f.context()
     buckets: dict[int, dict] = {}
-    for e, c in f.to_dict().items():
+    for e, c in zip(f.monoms(), f.coeffs()):
         rest = e[:var] + (0,) + e[var + 1:]
         buckets.setdefault(e[var], {})[rest] = c
     top = max(buckets, default=0)

@@ -44,9 +44,9 @@ from __future__ import annotations
 from math import lcm, prod
 from typing import Sequence
 
-from flint import arb, ctx, fmpq, fmpz_mpoly, fmpz_mpoly_ctx, fmpz_poly
+from flint import arb, ctx, fmpq, fmpq_poly, fmpz_mpoly, fmpz_mpoly_ctx, fmpz_poly
 
-from .algebraic import KernelError, RealAlgebraic, ball, real_roots, reduced, refine, root_bound
+from .algebraic import KernelError, RealAlgebraic, _sign, ball, real_roots, reduced, refine, root_bound
 from .polys import coefficients_in
 
 
@@ -75,6 +75,21 @@ def _substitute_rationals(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpz
         terms[key] = terms.get(key, fmpq(0)) + value
     den = lcm(*(int(v.q) for v in terms.values()))
     return p.context().from_dict({e: v.p * (den // v.q) for e, v in terms.items() if v != 0})
+
+
+def at_rational_point(p: fmpz_mpoly, values: Sequence[fmpq]) -> fmpq_poly:
+    """p with x_i = values[i] substituted exactly, as a polynomial in x_k, k = len(values)."""
+    k, coeffs = len(values), {}
+    for exps, c in zip(p.monoms(), p.coeffs()):
+        if any(exps[k + 1:]):
+            raise KernelError(f"{p} involves a variable beyond x{k}")
+        term = fmpq(c)
+        for v, e in zip(values, exps):
+            if e:
+                term *= v ** e
+        d = exps[k] if k < len(exps) else 0
+        coeffs[d] = coeffs.get(d, 0) + term
+    return fmpq_poly([coeffs.get(d, 0) for d in range(max(coeffs, default=0) + 1)])
 
 
 def _eliminate_algebraic(F: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpz_mpoly:
@@ -127,6 +142,8 @@ def sign_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> int:
     """The exact sign of p at `point` (interval filter, zero by the root-gap rule of DESIGN §5)."""
     _require_variables(p, len(point))
     point = [reduced(a) for a in point][: p.context().nvars()]
+    if all(a.is_rational() for a in point):
+        return _sign(at_rational_point(p, [a.low for a in point])[0])
     q = _substitute_rationals(p, point)
     if q.is_constant():
         return 0 if q.is_zero() else (1 if q.leading_coefficient() > 0 else -1)
@@ -153,7 +170,7 @@ def is_nullified(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> bool:
     _require_variables(p, k + 1)
     point = [reduced(a) for a in point]
     if all(a.is_rational() for a in point):
-        return _substitute_rationals(p, point).is_zero()
+        return at_rational_point(p, [a.low for a in point]).is_zero()
     return all(sign_at(c, point) == 0 for c in coefficients_in(p, k))
 
 
@@ -182,8 +199,13 @@ def real_roots_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> list[RealAlg
         raise KernelError(f"no variable x{k} in the context of {p}")
     _require_variables(p, k + 1)
     point = [reduced(a) for a in point]
+    if all(a.is_rational() for a in point):
+        u = at_rational_point(p, [a.low for a in point])
+        if u.is_zero():
+            raise KernelError(f"{p} vanishes identically in x{k} at the point")
+        return real_roots(u.numer())
     q = _substitute_rationals(p, point)
-    if q.is_zero() or (not all(a.is_rational() for a in point) and is_nullified(p, point)):
+    if q.is_zero() or is_nullified(p, point):
         raise KernelError(f"{p} vanishes identically in x{k} at the point")
     candidates = real_roots(_norm(q, point, k))
     if all(d == 0 for d in q.degrees()[:k]):
