@@ -202,10 +202,10 @@ def realize_interval(r: Replay, seg: Segment, here: AtSample, level: int):
 
 
 def less(a, b, inclusive=False) -> bool:
-    """``a < b`` (or ``a <= b``) for numbers and the infinities."""
-    if a == NEG_INF or b == POS_INF:
-        return a != b or inclusive
-    if a == POS_INF or b == NEG_INF:
+    """``a < b`` (or ``a <= b``) for numbers and the infinities (the strings ``-inf``, ``+inf``)."""
+    if isinstance(a, str) or isinstance(b, str):
+        if a == NEG_INF or b == POS_INF:
+            return a != b or inclusive
         return inclusive and a == b
     c = compare(a, b)
     return c < 0 or (inclusive and c == 0)
@@ -335,7 +335,7 @@ def require_nearest_roots(seg: Segment, here: AtSample, t, low, high, q) -> None
 
 
 def _same(a, b) -> bool:
-    if a in (NEG_INF, POS_INF) or b in (NEG_INF, POS_INF):
+    if isinstance(a, str) or isinstance(b, str):
         return a == b
     return compare(a, b) == 0
 
@@ -368,7 +368,9 @@ def coefficient_chain(r: Replay, f, var: int, here: AtSample, node: Node) -> set
     for c in P.coefficients_in(f, var):
         if c.is_zero():
             continue
-        out |= r.factors(c).keys() if not c.is_constant() else set()
+        if c.is_constant():
+            return out
+        out |= r.factors(c).keys()
         if here.sign(c) != 0:
             return out
     raise Rejection("PROJECT", f"node {node.id}: a characterization polynomial vanishes "

@@ -8,6 +8,7 @@ last variable).  "Level" of a polynomial is 1 + the index of its last variable
 from __future__ import annotations
 
 from math import lcm
+from typing import Iterator
 
 from flint import fmpq_mpoly, fmpz_mpoly
 
@@ -71,15 +72,15 @@ def _integral(g: fmpq_mpoly, ctx) -> fmpz_mpoly:
     return ctx.from_dict({e: int(c.p) * (den // int(c.q)) for e, c in terms.items()})
 
 
-def coefficients_in(f: fmpz_mpoly, var: int) -> list[fmpz_mpoly]:
-    """Coefficients of ``f`` as a polynomial in variable ``var``, leading one first."""
+def coefficients_in(f: fmpz_mpoly, var: int) -> Iterator[fmpz_mpoly]:
+    """Coefficients of ``f`` as a polynomial in variable ``var``, leading one first (each built when reached)."""
     ctx = f.context()
     buckets: dict[int, dict] = {}
     for e, c in zip(f.monoms(), f.coeffs()):
         rest = e[:var] + (0,) + e[var + 1:]
         buckets.setdefault(e[var], {})[rest] = c
-    top = max(buckets, default=0)
-    return [ctx.from_dict(buckets.get(d, {})) for d in range(top, -1, -1)]
+    for d in range(max(buckets, default=0), -1, -1):
+        yield ctx.from_dict(buckets.get(d, {}))
 
 
 def degree_in(f: fmpz_mpoly, var: int) -> int:
