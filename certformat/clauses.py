@@ -30,7 +30,7 @@ def base_literal(atom: Atom) -> tuple[Atom, bool]:
     """``(base atom, polarity)`` with ``atom ≡ base`` (True) or ``atom ≡ ¬base`` (False)."""
     if atom.rel in BASE_RELATIONS:
         return atom, True
-    return Atom(atom.poly, NEGATED[atom.rel]), False
+    return Atom(atom.poly, NEGATED[atom.rel], atom.key[1]), False
 
 
 @dataclass

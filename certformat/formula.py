@@ -64,10 +64,12 @@ class Atom:
     """``poly ⋈ 0`` in canonical form; build it with :func:`make_atom`."""
     poly: fmpz_mpoly
     rel: str
+    text: str = field(default="", repr=False)
+    """``str(poly)`` when the caller already has it."""
 
     def __post_init__(self):
         """A hashable identity, kept: (variable count, canonical text of the polynomial, relation)."""
-        object.__setattr__(self, "key", (self.poly.context().nvars(), str(self.poly), self.rel))
+        object.__setattr__(self, "key", (self.poly.context().nvars(), self.text or str(self.poly), self.rel))
 
     def __eq__(self, other):
         return isinstance(other, Atom) and self.key == other.key
@@ -179,7 +181,7 @@ def negate(f: Formula) -> Formula:
     if isinstance(f, BoolConst):
         return BoolConst(not f.value)
     if isinstance(f, Atom):
-        return Atom(f.poly, NEGATED[f.rel])
+        return Atom(f.poly, NEGATED[f.rel], f.key[1])
     if isinstance(f, Not):
         return f.arg
     return Not(f)

@@ -196,7 +196,8 @@ def refine(a: RealAlgebraic, width: fmpq) -> RealAlgebraic:
         low, high = (max(hint - width / 2, a.low), min(hint + width / 2, a.high)) if hint is not None else (0, 0)
         if low < high and _sign(a.poly(low)) * _sign(a.poly(high)) < 0:
             return RealAlgebraic(a.poly, low, high, a.minimal)
-        a = _halve(a)
+        for _ in range(4):          # a missed hint: narrow by bisection before the next
+            a = _halve(a) if a.high - a.low > width else a
     return a
 
 

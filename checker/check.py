@@ -83,13 +83,11 @@ def require_size(cert: Certificate, limits: Limits) -> None:
     if steps > limits.max_steps:
         raise Rejection("LIMITS", f"{steps} steps exceed the limit {limits.max_steps}", 0)
     for pid, poly in cert.polys.items():
-        for exps, c in poly.items():
-            if max(exps, default=0) > limits.max_degree:
-                raise Rejection("LIMITS", f"{pid} has degree above {limits.max_degree}",
-                                cert.lines[pid])
-            if abs(c).bit_length() > limits.max_coefficient_bits:
-                raise Rejection("LIMITS", f"{pid} has a coefficient over "
-                                f"{limits.max_coefficient_bits} bits", cert.lines[pid])
+        if max((max(exps, default=0) for exps in poly), default=0) > limits.max_degree:
+            raise Rejection("LIMITS", f"{pid} has degree above {limits.max_degree}", cert.lines[pid])
+        if max((abs(c) for c in poly.values()), default=0).bit_length() > limits.max_coefficient_bits:
+            raise Rejection("LIMITS", f"{pid} has a coefficient over "
+                            f"{limits.max_coefficient_bits} bits", cert.lines[pid])
     for nid, num in cert.numbers.items():
         parts = list(num.poly or ()) + [num.low.numerator, num.low.denominator,
                                         num.high.numerator, num.high.denominator]
@@ -123,7 +121,7 @@ def atom_literals(problem: Problem, cert: Certificate, cf: ClausalForm, order: l
         if claim.poly not in polys:
             raise Rejection("ATOM", f"polynomial {claim.poly} is not declared", claim.line)
         atom = cf.atoms[k - 1]
-        mine = P.permuted(atom.poly, order) if order else atom.poly
+        mine = P.permuted(atom.poly, order) if order != sorted(order) else atom.poly
         if mine != polys[claim.poly] or atom.rel != claim.rel:
             raise Rejection("ATOM", f"{aid} is not the problem's atom {k}", claim.line)
         out[aid] = (polys[claim.poly], atom.rel)

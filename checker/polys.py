@@ -20,7 +20,7 @@ def to_flint(poly: dict[tuple[int, ...], int], nvars: int) -> fmpz_mpoly:
     ctx = poly_context(nvars)
     if nvars == 0:
         return ctx.from_dict({(0,): c for e, c in poly.items()})
-    return ctx.from_dict(dict(poly))
+    return ctx.from_dict(poly)
 
 
 def permuted(poly: fmpz_mpoly, order: list[int]) -> fmpz_mpoly:

@@ -147,7 +147,7 @@ def sign_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> int:
     q = _substitute_rationals(p, point)
     if q.is_constant():
         return 0 if q.is_zero() else (1 if q.leading_coefficient() > 0 else -1)
-    gap, prec = zero_bound(q, point), 64
+    gap, prec = None, 64
     while True:
         point = [refine(a, fmpq(1, 2 ** prec)) for a in point]
         with ctx.workprec(prec):
@@ -156,6 +156,7 @@ def sign_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> int:
                 return 1
             if value < 0:
                 return -1
+            gap = zero_bound(q, point) if gap is None else gap
             if abs(value) < arb(gap):
                 return 0
         prec *= 2
