@@ -96,7 +96,7 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
     for seg, (low, high) in zip(node.segments, realized):
         r.limits.tick(seg.line)
         relevant += [r.polys[b.poly] for b in (seg.interval.low, seg.interval.high)
-                     if b not in (NEG_INF, POS_INF)]
+                     if not isinstance(b, str)]
         t = number(r, seg.sample, seg.line)
         require_inside(t, low, high, seg)
         if seg.literal is not None:
@@ -137,10 +137,9 @@ class AtSample:
         """The sign of f, which involves only the sample's variables, at the sample."""
         if not self.rational:
             return self._once(sign_at, f)
-        u = self._once(self._substituted, f)
-        if u.degree() > 0:
+        if any(f.degrees()[len(self.sample):]):
             raise KernelError(f"{f} involves a variable beyond the sample")
-        return _sign(u[0])
+        return _sign(self._once(self._substituted, f)[0])
 
     def sign_next(self, f: fmpz_mpoly, t: RealAlgebraic) -> int:
         """The sign of f at the sample extended by t."""
@@ -344,7 +343,7 @@ def project(r: Replay, relevant: list, here: AtSample, level: int, node: Node) -
     """Rule PROJECT (conservative, SOUNDNESS.md §4): what the node passes up."""
     main: dict[str, fmpz_mpoly] = {}
     up: set[str] = set()
-    for g in relevant:
+    for g in {r.key(g): g for g in relevant}.values():
         for k, f in r.factors(g).items():
             if r.level(f) == level:
                 main.setdefault(k, f)

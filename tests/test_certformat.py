@@ -114,3 +114,26 @@ def test_numbers_longer_than_cpython_int_text_limit_round_trip():
     assert again.polys["p1"] == {(1,): -big, (0,): 3}
     assert again.numbers["n1"].low == Fraction(big, 7)
     assert write_certificate(again) == text
+
+
+def test_whitespace_tabs_crlf_and_percent_in_names():
+    text = (EXAMPLE.replace("poly p2 = -3*x1*x2 + 7", "poly\tp2 =-3 * x1*x2+7")
+            .replace("seg (-inf, p3#1) at n3 by a1", "seg(-inf,p3#1)at n3 by a1 % a comment")
+            .replace('"a \\"quoted\\" name"', '"50% \\"quoted\\""').replace("\n", "\r\n"))
+    cert = read_certificate(text)
+    assert write_certificate(cert) == EXAMPLE.replace('"a \\"quoted\\" name"', '"50% \\"quoted\\""')
+    assert cert.variables[1].name == '50% "quoted"'
+
+
+@pytest.mark.parametrize("bad, words", [
+    ("seg (-inf, p3#1) at n3 by", ["'seg'", "SPEC.md"]),       # a statement cut short
+    ("seg (-inf, p3#1) at n3 by a1 $", ["'$'"]),               # a character of no token
+    ("poly p3 = x1 2", ["'poly'"]),                             # two words with no mark between
+    ("poly p3 = x1 ^", ["'poly'"]),
+])
+def test_malformed_statements_are_named(bad, words):
+    line = next(k for k, l in enumerate(EXAMPLE.split("\n"), 1) if l.strip().startswith(bad.split(" =")[0][:8]))
+    text = "\n".join(bad if k == line else l for k, l in enumerate(EXAMPLE.split("\n"), 1))
+    with pytest.raises(InputError) as err:
+        read_certificate(text, "c.cert")
+    assert err.value.line == line and all(w in str(err.value) for w in words), str(err.value)

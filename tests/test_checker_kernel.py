@@ -548,3 +548,66 @@ def test_zero_bound_is_below_every_nonzero_conjugate_value(terms, d0, d1):
             value = sympy.N(expr.subs({X[0]: t0, X[1]: t1}), 60)
             if abs(value) > sympy.Float(10) ** -50:                     # numerically non-zero
                 assert abs(value) > sympy.Rational(int(bound.p), int(bound.q))
+
+
+# --------------------------------------------------------------------------
+# Descartes isolation, Newton hints, and the rational fast path of AtSample.
+
+def test_descartes_bound_worked_example():
+    from checker.algebraic import descartes_bound
+    # by hand: (1+x)^2 g(2x/(1+x)) for g = x^2 - 2 is 2x^2 - 4x - 2: one variation, one root (sqrt 2) in (0, 2);
+    # on (-2, 2): (2x-2)^2 - 2(1+x)^2 = 2x^2 - 12x + 2: two variations (the roots -sqrt 2 and sqrt 2)
+    g = fmpz_poly([-2, 0, 1])
+    assert descartes_bound(g, fmpq(0), fmpq(2)) == 1
+    assert descartes_bound(g, fmpq(-2), fmpq(2)) == 2
+    assert descartes_bound(g, fmpq(2), fmpq(3)) == 0
+
+
+def test_refinement_survives_a_cycling_newton_hint():
+    # Newton's method for x^3 - 2x + 2 started at 0 cycles 0 -> 1 -> 0 (a textbook example of
+    # non-convergence; common-practice fact); its one real root is about -1.7693 (sympy as reference)
+    a = RealAlgebraic(fmpz_poly([2, -2, 0, 1]), fmpq(-2), fmpq(2))
+    r = refine(a, fmpq(1, 2 ** 80))
+    assert r.high - r.low <= fmpq(1, 2 ** 80)
+    assert r.poly(r.low) * r.poly(r.high) < 0
+    root = sympy.real_roots(sympy.Poly(Y ** 3 - 2 * Y + 2, Y))[0]
+    assert contains(r, root)
+
+
+@examples(150)
+@given(terms_strategy(3, 3, 6, 9), st.lists(st.fractions(-5, 5, max_denominator=7), min_size=2, max_size=2))
+def test_real_roots_at_rational_points_match_sympy(terms, values):
+    """Roots of p(v0, v1, x2) at rational (v0, v1): sympy's real roots of the substituted polynomial."""
+    p = to_flint(terms)
+    point = [RealAlgebraic.rational(v) for v in values]
+    expr = sympy.expand(to_sympy(terms).subs({X[0]: sympy.Rational(values[0].numerator, values[0].denominator),
+                                              X[1]: sympy.Rational(values[1].numerator, values[1].denominator)}))
+    if expr == 0:
+        with pytest.raises(KernelError):
+            real_roots_at(p, point)
+        return
+    expected = sorted(set(sympy.real_roots(sympy.Poly(expr, X[2]))), key=lambda r: sympy.N(r, 50)) \
+        if expr.has(X[2]) else []
+    ours = real_roots_at(p, point)
+    assert len(ours) == len(expected) and all(contains(r, e) for r, e in zip(ours, expected))
+
+
+@examples(120)
+@given(terms_strategy(3, 3, 6, 9), st.lists(st.fractions(-4, 4, max_denominator=5), min_size=2, max_size=2),
+       st.fractions(-4, 4, max_denominator=5))
+def test_node_memo_at_rational_samples_agrees_with_the_kernel(terms, values, t):
+    """cover.AtSample's substitution path gives what the kernel's general functions give."""
+    from checker.cover import AtSample
+    p = to_flint(terms)
+    sample = tuple(RealAlgebraic.rational(v) for v in values)
+    here = AtSample(sample, str)
+    assert here.rational and here.nullified(p) == is_nullified(p, list(sample))
+    if not here.nullified(p):
+        assert [(r.low, r.high) for r in here.roots(p)] == [(r.low, r.high) for r in real_roots_at(p, list(sample))]
+    point = RealAlgebraic.rational(t)
+    assert here.sign_next(p, point) == sign_at(p, list(sample) + [point])
+    c = CTX.from_dict({e[:2] + (0,): v for e, v in terms.items()})     # free of x2: a sign at the sample
+    assert here.sign(c) == sign_at(c, list(sample))
+    if any(e[2] for e in terms):
+        with pytest.raises(KernelError):
+            here.sign(p)
