@@ -27,8 +27,11 @@ Algorithms, each with the theorem it rests on:
   sign variations by Descartes' rule of signs after the Möbius map of the piece
   onto ``(0, oo)`` (:func:`descartes_bound`; Collins and Akritas 1976).  For a
   squarefree polynomial this ends (Vincent's theorem; Alesina and Galuzzi 1998).
-* **Refinement** -- Newton's iterates only *suggest* a narrow interval; it is
-  used when ``g`` changes sign across it, otherwise the interval is halved.
+* **Refinement** -- Newton's iterates (in Arb arithmetic) only *suggest* a narrow
+  interval; it is used when ``g`` changes sign across it, otherwise the interval is halved.
+* **Signs at rationals** -- ``g(x)`` at a rational ``x`` is first enclosed by an Arb
+  ball; a ball that excludes zero proves the sign (Arb rounds outward), otherwise the
+  exact rational value decides (:func:`sign_of_value`).
 * **Equality** -- two irreducible primitive polynomials with a common root are
   equal up to sign (the minimal polynomial is unique), so two numbers are equal
   iff their minimal forms share the polynomial and a root in the intersection
@@ -40,7 +43,7 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from functools import cmp_to_key
 
-from flint import arb, fmpq, fmpq_poly, fmpz, fmpz_poly
+from flint import arb, ctx, fmpq, fmpq_poly, fmpz, fmpz_poly
 
 
 class KernelError(Exception):
@@ -50,6 +53,13 @@ class KernelError(Exception):
 def _sign(value) -> int:
     """The sign -1, 0 or 1 of an exact number."""
     return (value > 0) - (value < 0)
+
+
+def sign_of_value(g: fmpz_poly, x: fmpq) -> int:
+    """The sign of g(x): proven by an Arb ball that excludes zero (DESIGN §2), else exact evaluation."""
+    with ctx.workprec(int(x.q).bit_length() + 64):
+        value = g(arb(x))
+    return 1 if value > 0 else -1 if value < 0 else _sign(g(x))
 
 
 def _to_fmpq(q) -> fmpq:
@@ -180,10 +190,10 @@ def _halve(a: RealAlgebraic) -> RealAlgebraic:
     if a.is_rational():
         return a
     mid = (a.low + a.high) / 2
-    at_mid = _sign(a.poly(mid))
+    at_mid = sign_of_value(a.poly, mid)
     if at_mid == 0:
         return RealAlgebraic.rational(mid)
-    if at_mid == _sign(a.poly(a.low)):
+    if at_mid == sign_of_value(a.poly, a.low):
         return RealAlgebraic(a.poly, mid, a.high, a.minimal)
     return RealAlgebraic(a.poly, a.low, mid, a.minimal)
 
@@ -194,7 +204,7 @@ def refine(a: RealAlgebraic, width: fmpq) -> RealAlgebraic:
     while a.high - a.low > width and not a.is_rational():
         hint = _newton_hint(a, width)
         low, high = (max(hint - width / 2, a.low), min(hint + width / 2, a.high)) if hint is not None else (0, 0)
-        if low < high and _sign(a.poly(low)) * _sign(a.poly(high)) < 0:
+        if low < high and sign_of_value(a.poly, low) * sign_of_value(a.poly, high) < 0:
             return RealAlgebraic(a.poly, low, high, a.minimal)
         for _ in range(4):          # a missed hint: narrow by bisection before the next
             a = _halve(a) if a.high - a.low > width else a
@@ -202,18 +212,21 @@ def refine(a: RealAlgebraic, width: fmpq) -> RealAlgebraic:
 
 
 def _newton_hint(a: RealAlgebraic, width: fmpq) -> fmpq | None:
-    """Newton's iterates for a.poly from the midpoint, rounded to multiples of width / 4 (a hint, never a decision)."""
-    x, unit, derivative = (a.low + a.high) / 2, width / 4, a.poly.derivative()
-    for _ in range(int(width.q).bit_length().bit_length() + 4):
-        slope = derivative(x)
-        if slope == 0:
-            return None
-        step = a.poly(x) / slope
-        x = fmpq((x - step) / unit).floor() * unit
-        if not a.low < x < a.high:
-            return None
-        if abs(step) < unit:
-            return x
+    """Newton's iterates for a.poly from the midpoint, in Arb arithmetic, rounded to multiples of width / 4 (a hint, never a decision)."""
+    unit, derivative = width / 4, a.poly.derivative()
+    x = (a.low + a.high) / 2
+    with ctx.workprec(int(unit.q).bit_length() + 64):
+        for _ in range(int(width.q).bit_length().bit_length() + 4):
+            slope = derivative(arb(x))
+            if not (slope > 0 or slope < 0):
+                return None
+            step = a.poly(arb(x)) / slope
+            man, exp = (x - step).mid().man_exp()
+            x = fmpq(fmpq(man) * fmpq(2) ** int(exp) / unit).floor() * unit
+            if not a.low < x < a.high:
+                return None
+            if abs(step) < arb(unit):
+                return x
     return None
 
 
@@ -233,7 +246,7 @@ def _same_number(a: RealAlgebraic, b: RealAlgebraic) -> bool:
     if a.poly != b.poly and a.poly != -b.poly:
         return False
     low, high = max(a.low, b.low), min(a.high, b.high)
-    return low < high and _sign(a.poly(low)) * _sign(a.poly(high)) < 0
+    return low < high and sign_of_value(a.poly, low) * sign_of_value(a.poly, high) < 0
 
 
 def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:

@@ -611,3 +611,16 @@ def test_node_memo_at_rational_samples_agrees_with_the_kernel(terms, values, t):
     if any(e[2] for e in terms):
         with pytest.raises(KernelError):
             here.sign(p)
+
+
+@examples(300)
+@given(st.lists(st.integers(-50, 50), min_size=1, max_size=12), st.fractions(-9, 9, max_denominator=2 ** 70),
+       st.booleans())
+def test_sign_of_value_matches_exact_evaluation(coeffs, x, make_root):
+    """The Arb filter never changes a sign: Python's fractions module as reference (zeros included)."""
+    from checker.algebraic import sign_of_value
+    g = fmpz_poly(coeffs)
+    if make_root:                                   # force g(x) = 0 exactly
+        g *= fmpz_poly([-x.numerator, x.denominator])
+    value = sum(int(c) * x ** i for i, c in enumerate(g.coeffs()))
+    assert sign_of_value(g, fmpq(x.numerator, x.denominator)) == (value > 0) - (value < 0)
