@@ -58,11 +58,11 @@ def _int(text: str) -> int:  # any length: CPython's int(str) refuses more than 
 
 def _rational(text: str, line: _Where) -> Fraction:
     """``("+" | "-")? INT ("/" INT)?``"""
-    sign = -1 if text[0] == "-" else 1
     num, _, den = text.lstrip("+- ").partition(" / ")
-    if den and _int(den) == 0:
+    den = _int(den) if den else 1
+    if den == 0:
         raise line.error("zero denominator")
-    return sign * Fraction(_int(num), _int(den or "1"))
+    return Fraction(-_int(num) if text[0] == "-" else _int(num), den)
 
 
 def _terms(text: str) -> list[tuple[int, list[tuple[str, int]]]]:
@@ -185,7 +185,7 @@ def _seg(cert: Certificate, m, line: _Where) -> None:
         interval = Interval(_bound(m[2]), _bound(m[3]), point=False)
     seg = Segment(interval, m[4], line=line.line)
     if m[5] is not None:
-        seg.literal = _literals(m[5])[0]
+        seg.literal = Literal(m[5].lstrip("~ "), positive=m[5][0] != "~")
     else:
         seg.child, seg.keep = m[6], tuple(m[7].split())
     next(reversed(cert.nodes.values())).segments.append(seg)
