@@ -92,7 +92,7 @@ def require_size(cert: Certificate, limits: Limits) -> None:
         parts = list(num.poly or ()) + [num.low.numerator, num.low.denominator,
                                         num.high.numerator, num.high.denominator]
         if len(num.poly or ()) - 1 > limits.max_degree or \
-                any(abs(c).bit_length() > limits.max_coefficient_bits for c in parts):
+                max(map(abs, parts)).bit_length() > limits.max_coefficient_bits:
             raise Rejection("LIMITS", f"{nid} exceeds the degree or size limits", num.line)
 
 
