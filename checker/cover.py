@@ -16,9 +16,9 @@ from certformat.certificate import NEG_INF, POS_INF, Certificate, Lemma, Node, S
 from certformat.formula import relation_holds
 
 from . import polys as P
-from .algebraic import KernelError, RealAlgebraic, _sign, compare, real_roots
+from .algebraic import KernelError, RealAlgebraic, _sign, compare
 from .limits import Limits, Rejection
-from .signs import at_rational_point, is_nullified, real_roots_at, sign_at
+from .signs import at_rational_point, is_nullified, real_roots_at, roots_of_substituted, sign_at
 
 
 @dataclass
@@ -125,10 +125,7 @@ class AtSample:
         return at_rational_point(f, [a.low for a in sample])
 
     def _substituted_roots(self, f: fmpz_mpoly, sample) -> list[RealAlgebraic]:
-        u = self._once(self._substituted, f)
-        if u.is_zero():
-            raise KernelError(f"{f} vanishes identically at the sample")
-        return real_roots(u.numer())
+        return roots_of_substituted(f, self._once(self._substituted, f))
 
     def roots(self, f: fmpz_mpoly) -> list[RealAlgebraic]:
         return self._once(self._substituted_roots if self.rational else real_roots_at, f)

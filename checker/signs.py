@@ -92,6 +92,13 @@ def at_rational_point(p: fmpz_mpoly, values: Sequence[fmpq]) -> fmpq_poly:
     return fmpq_poly([coeffs.get(d, 0) for d in range(max(coeffs, default=0) + 1)])
 
 
+def roots_of_substituted(p: fmpz_mpoly, u: fmpq_poly) -> list[RealAlgebraic]:
+    """The real roots of p at a rational point, from u = at_rational_point(p, point) (never given when u = 0)."""
+    if u.is_zero():
+        raise KernelError(f"{p} vanishes identically in the next variable at the point")
+    return real_roots(u.numer())
+
+
 def _eliminate_algebraic(F: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpz_mpoly:
     """F with each algebraic coordinate x_i that occurs eliminated: Res_{x_i}(F, d_i(x_i)), in turn."""
     ctx = F.context()
@@ -201,10 +208,7 @@ def real_roots_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> list[RealAlg
     _require_variables(p, k + 1)
     point = [reduced(a) for a in point]
     if all(a.is_rational() for a in point):
-        u = at_rational_point(p, [a.low for a in point])
-        if u.is_zero():
-            raise KernelError(f"{p} vanishes identically in x{k} at the point")
-        return real_roots(u.numer())
+        return roots_of_substituted(p, at_rational_point(p, [a.low for a in point]))
     q = _substitute_rationals(p, point)
     if q.is_zero() or is_nullified(p, point):
         raise KernelError(f"{p} vanishes identically in x{k} at the point")
