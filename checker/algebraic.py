@@ -2,8 +2,8 @@
 
 A real algebraic number is a defining integer polynomial with an isolating
 rational interval (:class:`RealAlgebraic`).  Everything here is decided by exact
-rational arithmetic; an ``arb`` ball is only ever *produced* (:func:`ball`),
-never consulted to decide.
+rational arithmetic, except that an ``arb`` ball enclosing ``g(x)`` that excludes zero
+proves the sign of ``g`` at a rational ``x`` (:func:`sign_of_value`; DESIGN §2).
 
 Algorithms, each with the theorem it rests on:
 
@@ -203,9 +203,10 @@ def refine(a: RealAlgebraic, width: fmpq) -> RealAlgebraic:
     a = reduced(a)
     while a.high - a.low > width and not a.is_rational():
         hint = _newton_hint(a, width)
-        low, high = (max(hint - width / 2, a.low), min(hint + width / 2, a.high)) if hint is not None else (0, 0)
-        if low < high and sign_of_value(a.poly, low) * sign_of_value(a.poly, high) < 0:
-            return RealAlgebraic(a.poly, low, high, a.minimal)
+        if hint is not None:
+            low, high = max(hint - width / 2, a.low), min(hint + width / 2, a.high)
+            if low < high and sign_of_value(a.poly, low) * sign_of_value(a.poly, high) < 0:
+                return RealAlgebraic(a.poly, low, high, a.minimal)
         for _ in range(4):          # a missed hint: narrow by bisection before the next
             a = _halve(a) if a.high - a.low > width else a
     return a

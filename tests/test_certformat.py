@@ -117,6 +117,8 @@ def test_numbers_longer_than_cpython_int_text_limit_round_trip():
 
 
 def test_whitespace_tabs_crlf_and_percent_in_names():
+    # SPEC.md §10: tokens may be separated by tabs or left unseparated next to a mark, '%' outside a
+    # string starts a comment, lines may end in CRLF; the same certificate must result
     text = (EXAMPLE.replace("poly p2 = -3*x1*x2 + 7", "poly\tp2 =-3 * x1*x2+7")
             .replace("seg (-inf, p3#1) at n3 by a1", "seg(-inf,p3#1)at n3 by a1 % a comment")
             .replace('"a \\"quoted\\" name"', '"50% \\"quoted\\""').replace("\n", "\r\n"))
@@ -132,6 +134,7 @@ def test_whitespace_tabs_crlf_and_percent_in_names():
     ("poly p3 = x1 ^", ["'poly'"]),
 ])
 def test_malformed_statements_are_named(bad, words):
+    # each line breaks the grammar of SPEC.md §10 in one place; the error names the line and statement
     line = next(k for k, l in enumerate(EXAMPLE.split("\n"), 1) if l.strip().startswith(bad.split(" =")[0][:8]))
     text = "\n".join(bad if k == line else l for k, l in enumerate(EXAMPLE.split("\n"), 1))
     with pytest.raises(InputError) as err:
