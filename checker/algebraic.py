@@ -144,8 +144,8 @@ def root_bound(g: fmpz_poly) -> fmpz:
 def descartes_bound(g: fmpz_poly, a: fmpq, b: fmpq) -> int:
     """Sign variations of (1 + x)^n g((a + bx) / (1 + x)), n = deg g: x > 0 maps onto (a, b), so this bounds the roots
     of g in (a, b), counted with multiplicity, and has their parity (Descartes' rule of signs); 1 means exactly one."""
-    shifted = fmpq_poly(g)(fmpq_poly([a, b - a]))
-    signs = [c > 0 for c in fmpq_poly(shifted.coeffs()[::-1])(fmpq_poly([1, 1])).coeffs() if c != 0]
+    shifted = fmpq_poly(g)(fmpq_poly([a, b - a])).numer()         # a positive multiple: the same signs
+    signs = [c > 0 for c in fmpz_poly(shifted.coeffs()[::-1])(fmpz_poly([1, 1])).coeffs() if c]
     return sum(1 for u, v in zip(signs, signs[1:]) if u != v)
 
 
@@ -301,10 +301,9 @@ def real_roots(f: fmpz_poly) -> list[RealAlgebraic]:
     """The distinct real roots of f != 0 in increasing order, each isolated per irreducible factor of f (:func:`isolate`)."""
     if f.is_zero():
         raise KernelError("the zero polynomial has every number as a root")
-    roots = []
-    for g, _ in f.factor()[1]:
-        if g.degree() == 1:
-            roots.append(RealAlgebraic.rational(fmpq(-g[0], g[1])))
-        else:
-            roots += isolate(g)
-    return sorted(roots, key=cmp_to_key(compare))
+    return sorted((z for g, _ in f.factor()[1] for z in irreducible_roots(g)), key=cmp_to_key(compare))
+
+
+def irreducible_roots(g: fmpz_poly) -> list[RealAlgebraic]:
+    """The real roots of g, irreducible over Q: -g0/g1 if linear, else :func:`isolate`."""
+    return [RealAlgebraic.rational(fmpq(-g[0], g[1]))] if g.degree() == 1 else isolate(g)
