@@ -22,10 +22,10 @@ MAX_CERTIFICATE_BYTES = 256 * 1024 * 1024
 
 # ---------------------------------------------------------------- reading
 
-_TOKEN = re.compile(r'"(?:[^"\\\n]|\\["\\/bfnrtu])*"|[-+]inf\b|<=|>=|!=|<|>|='
-                    r'|[A-Za-z0-9]+(?:#[0-9]+)?|[-+*^/@(),\[\]~]|%.*|[^ \t]')
-"""Tokens: a string, an infinity, a relation, a word, a mark; then a comment; then any other
-character, which no statement accepts."""
+_TOKEN = re.compile(r'[ \t]*([A-Za-z0-9]+(?:#[0-9]+)?|[-+]inf\b|[-+*^/@(),\[\]~]|<=|>=|!=|<|>|='
+                    r'|"(?:[^"\\\n]|\\["\\/bfnrtu])*"|%.*|[^ \t])')
+"""Tokens after blanks: a word, an infinity, a mark, a relation, a string; then a comment; then
+any other character, which no statement accepts."""
 
 # The grammar of SPEC.md §10 as regular expressions over a line's tokens joined by one space.
 _INT, _POWER, _LIT = "[0-9]+", r"(?:x[0-9]+|z)(?: \^ [0-9]+)?", "(?:~ )?[abd][0-9]+"

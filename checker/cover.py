@@ -8,7 +8,6 @@ justify each, and return what the node passes up to its parent's cell.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from functools import cmp_to_key
 from itertools import combinations
 
 from flint import fmpq_poly, fmpz_mpoly
@@ -17,7 +16,7 @@ from certformat.certificate import NEG_INF, POS_INF, Certificate, Lemma, Node, S
 from certformat.formula import relation_holds
 
 from . import polys as P
-from .algebraic import KernelError, RealAlgebraic, _sign, compare, irreducible_roots
+from .algebraic import KernelError, RealAlgebraic, _sign, compare
 from .limits import Limits, Rejection
 from .signs import at_rational_point, is_nullified, real_roots_at, roots_of_substituted, sign_at
 
@@ -39,9 +38,10 @@ class Replay:
     def _of(self, f: fmpz_mpoly) -> tuple:
         """(f, P.key(f), P.level(f)), once per object in this check (the entry keeps f alive, so
         its id stays its own)."""
-        if id(f) not in self.seen:
-            self.seen[id(f)] = (f, P.key(f), P.level(f))
-        return self.seen[id(f)]
+        entry = self.seen.get(id(f))
+        if entry is None:
+            entry = self.seen[id(f)] = (f, P.key(f), P.level(f))
+        return entry
 
     def key(self, f: fmpz_mpoly) -> str:
         return self._of(f)[1]
@@ -89,7 +89,7 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
     require_sample_degree(r, sample, node.line)
     if not node.segments:
         raise Rejection("COVER", f"node {node.id} has no intervals", node.line)
-    here = AtSample(sample, r.key, r.factors)
+    here = AtSample(sample, r.key)
     realized = [realize_interval(r, seg, here, level) for seg in node.segments]
     require_covers_line(realized, node)
     relevant: list[fmpz_mpoly] = []
@@ -104,16 +104,15 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
             relevant += check_direct(r, seg, here, level, t, low, high, up)
         else:
             relevant += check_lift(r, seg, node, here, level, t, low, high)
-    return up | project(r, relevant, here, level, node)
+    return up | project(r, relevant, here, level, node) if level > 1 else up   # a root's cell is a point
 
 
 class AtSample:
     """Signs, nullification and real roots over one node's sample, each computed once per node;
-    at a rational sample all from the substituted polynomial, at the empty one roots per
-    irreducible factor (SOUNDNESS.md, ROOTS)."""
+    at a rational sample all from the substituted polynomial (SOUNDNESS.md, ROOTS)."""
 
-    def __init__(self, sample, key, factors):
-        self.sample, self.key, self.factors = sample, key, factors
+    def __init__(self, sample, key):
+        self.sample, self.key = sample, key
         self.memo: dict[tuple, object] = {}
         self.rational = all(a.is_rational() for a in sample)
 
@@ -129,15 +128,8 @@ class AtSample:
     def _substituted_roots(self, f: fmpz_mpoly, sample) -> list[RealAlgebraic]:
         return roots_of_substituted(f, self._once(self._substituted, f))
 
-    def _factor_roots(self, f: fmpz_mpoly, sample) -> list[RealAlgebraic]:
-        if f.is_zero():
-            raise KernelError("the zero polynomial has every number as a root")
-        return sorted((z for g in self.factors(f).values()
-                       for z in irreducible_roots(at_rational_point(g, []).numer())), key=cmp_to_key(compare))
-
     def roots(self, f: fmpz_mpoly) -> list[RealAlgebraic]:
-        rule = self._factor_roots if not self.sample else self._substituted_roots if self.rational else real_roots_at
-        return self._once(rule, f)
+        return self._once(self._substituted_roots if self.rational else real_roots_at, f)
 
     def sign(self, f: fmpz_mpoly) -> int:
         """The sign of f, which involves only the sample's variables, at the sample."""

@@ -79,17 +79,16 @@ def _substitute_rationals(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpz
 
 def at_rational_point(p: fmpz_mpoly, values: Sequence[fmpq]) -> fmpq_poly:
     """p with x_i = values[i] substituted exactly, as a polynomial in x_k, k = len(values)."""
-    k, coeffs = len(values), {}
+    k, degrees = len(values), p.degrees()
+    if max(degrees[k + 1:], default=0) > 0:
+        raise KernelError(f"{p} involves a variable beyond x{k}")
+    coeffs = [0] * (degrees[k] + 1 if k < len(degrees) else 1)
     for exps, c in zip(p.monoms(), p.coeffs()):
-        if any(exps[k + 1:]):
-            raise KernelError(f"{p} involves a variable beyond x{k}")
-        term = fmpq(c)
         for v, e in zip(values, exps):
             if e:
-                term *= v ** e
-        d = exps[k] if k < len(exps) else 0
-        coeffs[d] = coeffs.get(d, 0) + term
-    return fmpq_poly([coeffs.get(d, 0) for d in range(max(coeffs, default=0) + 1)])
+                c = c * v ** e
+        coeffs[exps[k] if k < len(exps) else 0] += c
+    return fmpq_poly(coeffs)
 
 
 def roots_of_substituted(p: fmpz_mpoly, u: fmpq_poly) -> list[RealAlgebraic]:

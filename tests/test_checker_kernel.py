@@ -600,7 +600,7 @@ def test_node_memo_at_rational_samples_agrees_with_the_kernel(terms, values, t):
     from checker.cover import AtSample
     p = to_flint(terms)
     sample = tuple(RealAlgebraic.rational(v) for v in values)
-    here = AtSample(sample, str, factors_by_key)
+    here = AtSample(sample, str)
     assert here.rational and here.nullified(p) == is_nullified(p, list(sample))
     if not here.nullified(p):
         assert [(r.low, r.high) for r in here.roots(p)] == [(r.low, r.high) for r in real_roots_at(p, list(sample))]
@@ -612,21 +612,6 @@ def test_node_memo_at_rational_samples_agrees_with_the_kernel(terms, values, t):
         with pytest.raises(KernelError):
             here.sign(p)
 
-
-def factors_by_key(f):
-    from checker.polys import irreducible_factors
-    return {str(g): g for g in irreducible_factors(f)}
-
-
-@examples(120)
-@given(terms_strategy(1, 7, 6, 9))
-def test_node_memo_at_the_empty_sample_agrees_with_the_kernel(terms):
-    """cover.AtSample takes level-1 roots per irreducible factor; real_roots factors the univariate polynomial."""
-    from checker.cover import AtSample
-    p = to_flint(terms)
-    here = AtSample((), str, factors_by_key)
-    u = fmpz_poly([terms.get((d,), 0) for d in range(max(e[0] for e in terms) + 1)])
-    assert [(r.low, r.high) for r in here.roots(p)] == [(r.low, r.high) for r in real_roots(u)]
 
 
 @examples(300)
