@@ -253,7 +253,7 @@ def _same_number(a: RealAlgebraic, b: RealAlgebraic) -> bool:
 def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:
     """The exact sign of a - b: equality by minimal forms, otherwise bisect until the intervals are disjoint."""
     if a.is_rational() and b.is_rational():
-        return _sign(a.low - b.low)
+        return (a.low > b.low) - (a.low < b.low)
     a, b = reduced(a), reduced(b)
     if _same_number(a, b):
         return 0
@@ -301,6 +301,8 @@ def real_roots(f: fmpz_poly) -> list[RealAlgebraic]:
     """The distinct real roots of f != 0 in increasing order, each isolated per irreducible factor of f (:func:`isolate`)."""
     if f.is_zero():
         raise KernelError("the zero polynomial has every number as a root")
+    if f.degree() == 1:
+        return irreducible_roots(f)
     return sorted((z for g, _ in f.factor()[1] for z in irreducible_roots(g)), key=cmp_to_key(compare))
 
 
