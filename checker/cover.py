@@ -8,15 +8,16 @@ justify each, and return what the node passes up to its parent's cell.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cmp_to_key
 from itertools import combinations
 
-from flint import fmpq_poly, fmpz_mpoly
+from flint import fmpq, fmpq_poly, fmpz_mpoly
 
 from certformat.certificate import NEG_INF, POS_INF, Certificate, Lemma, Node, Segment
 from certformat.formula import relation_holds
 
 from . import polys as P
-from .algebraic import KernelError, RealAlgebraic, _sign, compare
+from .algebraic import KernelError, RealAlgebraic, _sign, compare, irreducible_roots, refine
 from .limits import Limits, Rejection
 from .signs import at_rational_point, is_nullified, real_roots_at, roots_of_substituted, sign_at
 
@@ -50,10 +51,15 @@ class Replay:
         return self._of(f)[2]
 
     def factors(self, f: fmpz_mpoly) -> dict[str, fmpz_mpoly]:
-        """Irreducible factors of f by their keys, each factorization done once per check."""
+        """Irreducible factors of f by their keys, each factorization done once per check (f's
+        primitive part shares them, and each irreducible factor is its own factorization)."""
         k = self.key(f)
         if k not in self.factor_memo:
-            self.factor_memo[k] = {self.key(g): g for g in P.irreducible_factors(f)}
+            g = P.normalized(f)
+            found = self.factor_memo.get(self.key(g)) or {self.key(h): h for h in P.irreducible_factors(g)}
+            for h, factor in found.items():
+                self.factor_memo[h] = {h: factor}
+            self.factor_memo[k] = self.factor_memo[self.key(g)] = found
         return self.factor_memo[k]
 
     @property
@@ -89,7 +95,7 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
     require_sample_degree(r, sample, node.line)
     if not node.segments:
         raise Rejection("COVER", f"node {node.id} has no intervals", node.line)
-    here = AtSample(sample, r.key)
+    here = AtSample(sample, r.key, r.factor_memo.get)
     realized = [realize_interval(r, seg, here, level) for seg in node.segments]
     require_covers_line(realized, node)
     relevant: list[fmpz_mpoly] = []
@@ -109,12 +115,14 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
 
 class AtSample:
     """Signs, nullification and real roots over one node's sample, each computed once per node;
-    at a rational sample all from the substituted polynomial (SOUNDNESS.md, ROOTS)."""
+    at a rational sample all from the substituted polynomial, at the empty one by the factors
+    already known for it (SOUNDNESS.md, ROOTS)."""
 
-    def __init__(self, sample, key):
-        self.sample, self.key = sample, key
+    def __init__(self, sample, key, known=dict().get):
+        self.key, self.known = key, known
         self.memo: dict[tuple, object] = {}
         self.rational = all(a.is_rational() for a in sample)
+        self.sample = sample if self.rational else tuple(refine(a, fmpq(1, 2 ** 64)) for a in sample)  # once, not per sign
 
     def _once(self, rule, f: fmpz_mpoly):
         k = (rule, self.key(f))
@@ -126,7 +134,11 @@ class AtSample:
         return at_rational_point(f, [a.low for a in sample])
 
     def _substituted_roots(self, f: fmpz_mpoly, sample) -> list[RealAlgebraic]:
-        return roots_of_substituted(f, self._once(self._substituted, f))
+        known = None if sample else self.known(self.key(f))
+        if known is None:
+            return roots_of_substituted(f, self._once(self._substituted, f))
+        return sorted((z for g in known.values() for z in irreducible_roots(self._once(self._substituted, g).numer())),
+                      key=cmp_to_key(compare))
 
     def roots(self, f: fmpz_mpoly) -> list[RealAlgebraic]:
         return self._once(self._substituted_roots if self.rational else real_roots_at, f)
@@ -234,16 +246,6 @@ def require_covers_line(realized, node: Node) -> None:
                         f"at or after {'-inf' if reach == NEG_INF else 'a bound value'}", node.line)
 
 
-class _Ordered:
-    """Sort key for real algebraic numbers by exact comparison."""
-
-    def __init__(self, a):
-        self.a = a
-
-    def __lt__(self, other):
-        return compare(self.a, other.a) < 0
-
-
 def check_direct(r: Replay, seg: Segment, here: AtSample, level: int, t, low, high,
                  up: set) -> list:
     """Rule DIRECT: the literal has one sign on the interval and that sign falsifies it."""
@@ -324,8 +326,8 @@ def require_nearest_roots(seg: Segment, here: AtSample, t, low, high, q) -> None
         return
     below = [z for z in roots if compare(z, t) < 0]
     above = [z for z in roots if compare(z, t) > 0]
-    want_low = max(below, key=_Ordered) if below else NEG_INF
-    want_high = min(above, key=_Ordered) if above else POS_INF
+    want_low = max(below, key=cmp_to_key(compare)) if below else NEG_INF
+    want_high = min(above, key=cmp_to_key(compare)) if above else POS_INF
     if not (_same(low, want_low) and _same(high, want_high)):
         raise Rejection("LIFT", f"{seg.interval} is not bounded by the nearest roots of the "
                         "declared set around the sample", seg.line)
@@ -351,7 +353,7 @@ def project(r: Replay, relevant: list, here: AtSample, level: int, node: Node) -
     for k, f in main.items():
         r.limits.tick(node.line)
         up |= coefficient_chain(r, f, var, here, node)
-        if P.degree_in(f, var) >= 2:
+        if f.degrees()[var] >= 2:
             up |= nonzero_factors(r, (k,), lambda: P.discriminant(f, var), "discriminant", node)
     for (k, f), (l, g) in combinations(main.items(), 2):
         r.limits.tick(node.line)

@@ -83,11 +83,6 @@ def coefficients_in(f: fmpz_mpoly, var: int) -> Iterator[fmpz_mpoly]:
         yield ctx.from_dict(buckets.get(d, {}))
 
 
-def degree_in(f: fmpz_mpoly, var: int) -> int:
-    """Degree of ``f`` in variable ``var``."""
-    return f.degrees()[var]
-
-
 def discriminant(f: fmpz_mpoly, var: int) -> fmpz_mpoly:
     """Discriminant of ``f`` with respect to ``var`` (flint)."""
     return f.discriminant(f.context().names()[var])
