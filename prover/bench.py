@@ -9,6 +9,10 @@ The directory name is the expected answer (SMT-LIB status annotations); a
 contradicting answer or a rejected certificate is reported loudly and makes the
 command exit 1.
 
+Each file is timed as a one-shot ``tessella prove`` and ``tessella check`` would
+be: the prover's memo caches are emptied first, so no file profits from the
+polynomials of the files its worker did before (the checker keeps none).
+
 The summary gives, for sat and unsat, over all files and over the pure
 conjunctions: solved/total, median and 90th-percentile prove time, the median
 check/prove time ratio (per file; checking includes reading the certificate), the
@@ -59,8 +63,10 @@ def run_one(path: str, timeout: float) -> dict:
     from certformat.certio import read_certificate
     from certformat.problem import load_problem
     from checker.check import check
+    from prover.roots import forget_cached
     from prover.solve import prove
 
+    forget_cached()     # each file is proven as by a fresh process, whatever this worker did before
     t = time.monotonic()
     problem = load_problem(path)
     record = {"parse_time": time.monotonic() - t, "nvars": len(problem.variables),

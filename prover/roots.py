@@ -549,3 +549,11 @@ def sample_between(a: RealAlg | None, b: RealAlg | None) -> RealAlg:
         # A failing candidate is cut out of the endpoint's isolating interval.
         if (a is None or a.compare(s) < 0) and (b is None or b.compare(s) > 0):
             return RealAlg.from_rational(s)
+
+
+def forget_cached() -> None:
+    """Empty this process's memo caches (factorizations, isolations, fields), so that the next
+    proof costs what it would in a fresh process (the benchmark times each file this way)."""
+    from . import numbers
+    for cached in (_isolate_key, _irreducible_roots, _field_of, numbers._factors_of_key):
+        cached.cache_clear()

@@ -541,9 +541,8 @@ def test_initial_interval_is_history_independent():
     for r in isolate_real_roots(f):
         r.refine(100)
         assert r.initial_interval[0] <= r.low < r.high <= r.initial_interval[1]
-    from prover import numbers, roots
-    for cached in (roots._isolate_key, roots._irreducible_roots, numbers._factors_of_key):
-        cached.cache_clear()
+    from prover.roots import forget_cached
+    forget_cached()
     assert [r.initial_interval for r in isolate_real_roots(f)] == first
 
 
