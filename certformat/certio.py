@@ -1,9 +1,9 @@
 """Reading certificates (SPEC.md); the writer is :mod:`prover.certwrite`.
 
-``read_certificate`` reads one statement per line by the grammar of SPEC.md
-§11 (a plain recursive-descent reader: each statement is one small function)
-and checks only the structure (header first, ids declared once, segments under
-a node); whether the claims hold is the checker's business.
+``read_certificate`` matches each line's tokens, joined by single spaces, against
+its statement's form in SPEC.md §10, builds it with one small function, and checks
+only the structure (header first, ids declared once, segments under a node);
+whether the claims hold is the checker's business.
 """
 from __future__ import annotations
 

@@ -25,8 +25,10 @@ from .order import to_certificate_order
 from .roots import sign_at
 from .search import TheoryAnswer, search
 
-MINIMIZE_BUDGET = 0.25
-"""Fraction of the time spent on a conflict that its minimization may add (per lemma)."""
+MINIMIZE_BUDGET, MINIMIZE_NODES = 0.25, 100
+"""A conflict's minimization may explore MINIMIZE_BUDGET times the covering nodes its first
+covering took, plus MINIMIZE_NODES (per lemma): counted in nodes, not seconds, so that the
+certificate never depends on the machine's speed."""
 
 
 class _Theory:
@@ -51,14 +53,14 @@ class _Theory:
             self.nodes += run.stats.nodes
 
     def __call__(self, assigned: tuple[int, ...]) -> TheoryAnswer:
-        started = time.monotonic()
+        first = self.nodes
         result = self.cover(assigned)
         if isinstance(result, Model):
             return TheoryAnswer("sat", model=result)
         used = _literal_numbers(result)
-        budget = started + (1 + MINIMIZE_BUDGET) * (time.monotonic() - started) + 0.05
+        budget = self.nodes + MINIMIZE_BUDGET * (self.nodes - first) + MINIMIZE_NODES
         for lit in sorted(used, key=abs, reverse=True):
-            if time.monotonic() > budget or len(used) == 1:
+            if self.nodes > budget or len(used) == 1:
                 break
             fewer = tuple(l for l in used if l != lit)
             smaller = self.cover(fewer)
