@@ -25,7 +25,7 @@ from .order import to_certificate_order
 from .roots import sign_at
 from .search import TheoryAnswer, search
 
-MINIMIZE_BUDGET, MINIMIZE_NODES = 0.25, 100
+MINIMIZE_BUDGET, MINIMIZE_NODES = 0.25, 16
 """A conflict's minimization may explore MINIMIZE_BUDGET times the covering nodes its first
 covering took, plus MINIMIZE_NODES (per lemma): counted in nodes, not seconds, so that the
 certificate never depends on the machine's speed."""
