@@ -110,7 +110,7 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
             relevant += check_direct(r, seg, here, level, t, low, high, up)
         else:
             relevant += check_lift(r, seg, node, here, level, t, low, high)
-    return up | project(r, relevant, here, level, node) if level > 1 else up   # a root's cell is a point
+    return up if level == 1 else up | project(r, relevant, here, level, node)   # a root's cell is a point
 
 
 class AtSample:

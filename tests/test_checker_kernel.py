@@ -625,3 +625,17 @@ def test_sign_of_value_matches_exact_evaluation(coeffs, x, make_root):
         g *= fmpz_poly([-x.numerator, x.denominator])
     value = sum(int(c) * x ** i for i, c in enumerate(g.coeffs()))
     assert sign_of_value(g, fmpq(x.numerator, x.denominator)) == (value > 0) - (value < 0)
+
+
+@examples(120)
+@given(terms_strategy(1, 7, 6, 9))
+def test_node_memo_at_the_empty_sample_uses_known_factors(terms):
+    """cover.AtSample at the empty sample: roots per known irreducible factor (SOUNDNESS ROOTS)
+    equal the kernel's roots of the univariate polynomial, which it factors itself."""
+    from checker.cover import AtSample
+    from checker.polys import irreducible_factors
+    p = to_flint(terms)
+    known = {str(p): {str(g): g for g in irreducible_factors(p)}}
+    here = AtSample((), str, known.get)
+    u = fmpz_poly([terms.get((d,), 0) for d in range(max(e[0] for e in terms) + 1)])
+    assert [(r.low, r.high) for r in here.roots(p)] == [(r.low, r.high) for r in real_roots(u)]
