@@ -301,11 +301,11 @@ def real_roots(f: fmpz_poly) -> list[RealAlgebraic]:
     """The distinct real roots of f != 0 in increasing order, each isolated per irreducible factor of f (:func:`isolate`)."""
     if f.is_zero():
         raise KernelError("the zero polynomial has every number as a root")
-    if f.degree() == 1:
-        return irreducible_roots(f)
-    return sorted((z for g, _ in f.factor()[1] for z in irreducible_roots(g)), key=cmp_to_key(compare))
+    return roots_of_factors([f] if f.degree() == 1 else [g for g, _ in f.factor()[1]])
 
 
-def irreducible_roots(g: fmpz_poly) -> list[RealAlgebraic]:
-    """The real roots of g, irreducible over Q: -g0/g1 if linear, else :func:`isolate`."""
-    return [RealAlgebraic.rational(fmpq(-g[0], g[1]))] if g.degree() == 1 else isolate(g)
+def roots_of_factors(factors) -> list[RealAlgebraic]:
+    """The real roots of distinct polynomials irreducible over Q (so no root is shared), increasing:
+    -g0/g1 for a linear g, else :func:`isolate`."""
+    roots = (z for g in factors for z in ([RealAlgebraic.rational(fmpq(-g[0], g[1]))] if g.degree() == 1 else isolate(g)))
+    return sorted(roots, key=cmp_to_key(compare))

@@ -17,7 +17,7 @@ from certformat.certificate import NEG_INF, POS_INF, Certificate, Lemma, Node, S
 from certformat.formula import relation_holds
 
 from . import polys as P
-from .algebraic import KernelError, RealAlgebraic, _sign, compare, irreducible_roots, refine
+from .algebraic import KernelError, RealAlgebraic, _sign, compare, refine, roots_of_factors
 from .limits import Limits, Rejection
 from .signs import at_rational_point, is_nullified, real_roots_at, roots_of_substituted, sign_at
 
@@ -137,8 +137,7 @@ class AtSample:
         known = None if sample else self.known(self.key(f))
         if known is None:
             return roots_of_substituted(f, self._once(self._substituted, f))
-        return sorted((z for g in known.values() for z in irreducible_roots(self._once(self._substituted, g).numer())),
-                      key=cmp_to_key(compare))
+        return roots_of_factors([self._once(self._substituted, g).numer() for g in known.values()])
 
     def roots(self, f: fmpz_mpoly) -> list[RealAlgebraic]:
         return self._once(self._substituted_roots if self.rational else real_roots_at, f)

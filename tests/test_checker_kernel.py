@@ -631,7 +631,8 @@ def test_sign_of_value_matches_exact_evaluation(coeffs, x, make_root):
 @given(terms_strategy(1, 7, 6, 9))
 def test_node_memo_at_the_empty_sample_uses_known_factors(terms):
     """cover.AtSample at the empty sample: roots per known irreducible factor (SOUNDNESS ROOTS)
-    equal the kernel's roots of the univariate polynomial, which it factors itself."""
+    equal the kernel's roots of the univariate polynomial, which it factors itself (and which
+    test_real_roots_match_sympy checks against sympy)."""
     from checker.cover import AtSample
     from checker.polys import irreducible_factors
     p = to_flint(terms)
