@@ -1,9 +1,10 @@
 """Reading certificates (SPEC.md); the writer is :mod:`prover.certwrite`.
 
-``read_certificate`` matches each line's tokens, joined by single spaces, against
-its statement's form in SPEC.md §10, builds it with one small function, and checks
-only the structure (header first, ids declared once, segments under a node);
-whether the claims hold is the checker's business.
+``read_certificate`` matches each line against its statement's form in SPEC.md §10
+(written over tokens joined by single spaces; each space stands for the blanks a token
+boundary allows), builds it with one small function, and checks only the structure
+(header first, ids declared once, segments under a node); whether the claims hold is
+the checker's business.
 """
 from __future__ import annotations
 
@@ -22,17 +23,20 @@ MAX_CERTIFICATE_BYTES = 256 * 1024 * 1024
 
 # ---------------------------------------------------------------- reading
 
+# Tokens after blanks (used to explain a line that matches no form): a word, an infinity, a mark,
+# a relation, a string; then a comment; then any other character, which no statement accepts.
 _TOKEN = re.compile(r'[ \t]*([A-Za-z0-9]+(?:#[0-9]+)?|[-+]inf\b|[-+*^/@(),\[\]~]|<=|>=|!=|<|>|='
                     r'|"(?:[^"\\\n]|\\["\\/bfnrtu])*"|%.*|[^ \t])')
-"""Tokens after blanks: a word, an infinity, a mark, a relation, a string; then a comment; then
-any other character, which no statement accepts."""
+_BLANKS = r"(?:[ \t]+|(?<!\w)|(?!\w))"  # between tokens: blanks, optional unless both sides are word characters
+_KEYWORD = re.compile(r"[ \t]*([A-Za-z0-9]+|.?)")  # a statement's first word, or else its first character
 
 # The grammar of SPEC.md §10 as regular expressions over a line's tokens joined by one space.
 _INT, _POWER, _LIT = "[0-9]+", r"(?:x[0-9]+|z)(?: \^ [0-9]+)?", "(?:~ )?[abd][0-9]+"
 _RATIONAL = rf"(?:[-+] )?{_INT}(?: / {_INT})?"
 _BODY = rf"(?:{_INT}|{_POWER})(?: \* {_POWER})*"
 _POLY = rf"(?:[-+] )?{_BODY}(?: [-+] (?:[-+] )?{_BODY})*"
-_TERM = re.compile(rf" (?:([-+]) )?(?:([-+]) )?({_BODY})")
+# A term of a polynomial with its blanks removed: its two optional signs, then its body.
+_TERM = re.compile(r"([-+]?)([-+]?)((?:[0-9]+|(?:x[0-9]+|z)(?:\^[0-9]+)?)(?:\*(?:x[0-9]+|z)(?:\^[0-9]+)?)*)")
 _BOUND = r"-inf|\+inf|p[0-9]+#[0-9]+"
 _FORMS = {
     "tessella": rf"tessella ({_INT}) (unsat|sat)",
@@ -49,7 +53,9 @@ _FORMS = {
     "infer": rf"infer (false|{_LIT}(?: {_LIT})*)",
     "value": "value (x[0-9]+) (n[0-9]+)",
     "bool": rf"bool ({_INT}) (true|false)"}
-_STATEMENT = {keyword: re.compile(form) for keyword, form in _FORMS.items()}
+_LITERAL = re.compile(r"(~?)[ \t]*([abd][0-9]+)")
+_STATEMENT = {keyword: re.compile(r"[ \t]*" + form.replace(" ", _BLANKS) + r"[ \t]*(?:%.*)?", re.ASCII)
+              for keyword, form in _FORMS.items()}
 
 
 def _int(text: str) -> int:  # any length: CPython's int(str) refuses more than 4300 digits
@@ -58,7 +64,7 @@ def _int(text: str) -> int:  # any length: CPython's int(str) refuses more than 
 
 def _rational(text: str, line: _Where) -> Fraction:
     """``("+" | "-")? INT ("/" INT)?``"""
-    num, _, den = text.lstrip("+- ").partition(" / ")
+    num, _, den = text.replace(" ", "").replace("\t", "").lstrip("+-").partition("/")
     den = _int(den) if den else 1
     if den == 0:
         raise line.error("zero denominator")
@@ -68,10 +74,10 @@ def _rational(text: str, line: _Where) -> Fraction:
 def _terms(text: str) -> list[tuple[int, list[tuple[str, int]]]]:
     """The terms (coefficient, [(variable, exponent)]) of a polynomial matched by ``_POLY``."""
     terms = []
-    for first, second, body in _TERM.findall(" " + text):
-        factors = body.split(" * ")
+    for first, second, body in _TERM.findall(text.replace(" ", "").replace("\t", "")):  # no two words meet
+        factors = body.split("*")
         coeff = _int(factors.pop(0)) if factors[0][0].isdigit() else 1
-        powers = [(var, _int(e or "1")) for var, _, e in (f.partition(" ^ ") for f in factors)]
+        powers = [(var, _int(e or "1")) for var, _, e in (f.partition("^") for f in factors)]
         terms.append((-coeff if (first == "-") != (second == "-") else coeff, powers))
     return terms
 
@@ -105,7 +111,7 @@ def _univariate(text: str, line: _Where) -> tuple[int, ...]:
 
 def _literals(text: str) -> tuple[Literal, ...]:
     """Each ``"~"? (aK | bK | dK)`` of a literal list matched by ``_LIT``."""
-    return tuple(Literal(w.lstrip("~"), positive=w[0] != "~") for w in text.replace("~ ", "~").split(" "))
+    return tuple(Literal(name, positive=not tilde) for tilde, name in _LITERAL.findall(text))
 
 
 def _bound(text: str):
@@ -143,7 +149,7 @@ def _problem_hash(cert: Certificate, m, line: _Where) -> None:
 def _var(cert: Certificate, m, line: _Where) -> None:
     _declare(cert, line, "x" + m[1])
     try:
-        name = json.loads(m[3])
+        name = m[3][1:-1] if m[3].isprintable() and "\\" not in m[3] else json.loads(m[3])
     except ValueError:
         raise line.error("bad escape in the variable name", m[3]) from None
     cert.variables.append(VarDecl(_int(m[1]), _int(m[2]), name, line.line))
@@ -173,7 +179,7 @@ def _lemma(cert: Certificate, m, line: _Where) -> None:
 
 def _node(cert: Certificate, m, line: _Where) -> None:
     ident = _declare(cert, line, m[1])
-    cert.nodes[ident] = Node(ident, () if m[2] == "-" else tuple(m[2].split(" ")), [], line.line)
+    cert.nodes[ident] = Node(ident, () if m[2] == "-" else tuple(m[2].split()), [], line.line)
 
 
 def _seg(cert: Certificate, m, line: _Where) -> None:
@@ -218,18 +224,17 @@ def read_certificate(text: str, path: str = "<certificate>") -> Certificate:
     cert = None
     for number, raw in enumerate(text.split("\n"), 1):
         raw = raw[:-1] if raw.endswith("\r") else raw
-        tokens = _TOKEN.findall(raw)
-        if tokens and tokens[-1][0] == "%":
-            tokens.pop()
-        if not tokens:
+        keyword = _KEYWORD.match(raw)[1]
+        if keyword in ("", "%"):
             continue
-        line, keyword = _Where(path, number, raw), tokens[0]
+        line = _Where(path, number, raw)
         if cert is None and keyword != "tessella":
             raise line.error("a certificate must start with 'tessella 1 unsat|sat'", keyword)
         if keyword not in _READERS and (keyword != "tessella" or cert is not None):
             raise line.error(f"unknown statement {keyword!r}", keyword)
-        m = _STATEMENT[keyword].fullmatch(" ".join(tokens))
+        m = _STATEMENT[keyword].fullmatch(raw)
         if m is None:
+            tokens = _TOKEN.findall(raw)
             bad = [t for t in tokens if len(t) == 1 and t not in "-+*^/@(),[]~<>=" and not t.isalnum()]
             raise line.error(f"unexpected character {bad[0]!r}", bad[0]) if bad else \
                 line.error(f"malformed '{keyword}' statement (grammar: SPEC.md §10)", keyword)

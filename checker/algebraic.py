@@ -88,7 +88,7 @@ class RealAlgebraic:
     @staticmethod
     def rational(q) -> RealAlgebraic:
         """The rational q = num/den, defined by den*x - num."""
-        q = _to_fmpq(q)
+        q = q if isinstance(q, fmpq) else _to_fmpq(q)
         return RealAlgebraic(fmpz_poly([-q.p, q.q]), q, q, minimal=True)
 
     def __hash__(self):

@@ -83,9 +83,9 @@ def require_size(cert: Certificate, limits: Limits) -> None:
     if steps > limits.max_steps:
         raise Rejection("LIMITS", f"{steps} steps exceed the limit {limits.max_steps}", 0)
     for pid, poly in cert.polys.items():
-        if max((max(exps, default=0) for exps in poly), default=0) > limits.max_degree:
+        if max(map(max, filter(None, poly)), default=0) > limits.max_degree:
             raise Rejection("LIMITS", f"{pid} has degree above {limits.max_degree}", cert.lines[pid])
-        if max((abs(c) for c in poly.values()), default=0).bit_length() > limits.max_coefficient_bits:
+        if max(map(abs, poly.values()), default=0).bit_length() > limits.max_coefficient_bits:
             raise Rejection("LIMITS", f"{pid} has a coefficient over "
                             f"{limits.max_coefficient_bits} bits", cert.lines[pid])
     for nid, num in cert.numbers.items():
@@ -100,10 +100,10 @@ def checked_number(nid: str, num, cert: Certificate, limits: Limits) -> RealAlge
     """Rule NUMBER: a rational, or a polynomial with exactly one root in an open interval
     (kept in minimal form: defined by the irreducible factor that vanishes at it)."""
     limits.tick(num.line)
-    low, high = fmpq(num.low.numerator, num.low.denominator), \
-        fmpq(num.high.numerator, num.high.denominator)
+    low = fmpq(num.low.numerator, num.low.denominator)
     if num.poly is None:
         return RealAlgebraic.rational(low)
+    high = fmpq(num.high.numerator, num.high.denominator)
     try:
         return reduced(RealAlgebraic(fmpz_poly(list(num.poly)), low, high))
     except KernelError as err:
