@@ -1,4 +1,5 @@
-"""The data model of certificates (SPEC.md): plain, exact, free of flint objects.
+"""The data model of certificates (SPEC.md): plain, exact, free of flint objects; the small
+records are named tuples (immutable, and quick to build: a certificate has thousands of them).
 
 Polynomials are ``{exponent tuple: int}`` over the certificate's variables
 ``x1 … xn`` (exponent tuples have length n); univariate number polynomials are
@@ -9,14 +10,14 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from fractions import Fraction
+from typing import NamedTuple
 
 Poly = dict[tuple[int, ...], int]
 
 VERSION = 1
 
 
-@dataclass(frozen=True)
-class VarDecl:
+class VarDecl(NamedTuple):
     """``var xK = J "NAME"``: certificate variable K is the problem's J-th real variable."""
     index: int
     problem_index: int
@@ -24,8 +25,7 @@ class VarDecl:
     line: int = 0
 
 
-@dataclass(frozen=True)
-class Number:
+class Number(NamedTuple):
     """``num``: the rational ``low`` (when ``poly`` is None) or the root of ``poly`` in (low, high)."""
     poly: tuple[int, ...] | None
     low: Fraction
@@ -33,16 +33,14 @@ class Number:
     line: int = 0
 
 
-@dataclass(frozen=True)
-class AtomClaim:
+class AtomClaim(NamedTuple):
     """``atom aK = pJ REL 0``."""
     poly: str
     rel: str
     line: int = 0
 
 
-@dataclass(frozen=True)
-class Literal:
+class Literal(NamedTuple):
     """``aK``/``~aK`` (atoms), ``bK`` (Boolean variables), ``dK`` (definitions)."""
     name: str
     positive: bool = True
@@ -54,8 +52,7 @@ class Literal:
         return self.name if self.positive else "~" + self.name
 
 
-@dataclass(frozen=True)
-class Root:
+class Root(NamedTuple):
     """``pK#j``: the j-th smallest distinct real root of pK over the node's sample."""
     poly: str
     index: int
@@ -69,8 +66,7 @@ POS_INF = "+inf"
 Bound = Root | str
 
 
-@dataclass(frozen=True)
-class Interval:
+class Interval(NamedTuple):
     """``(low, high)`` when not ``point``; ``[low]`` (and high == low) when ``point``."""
     low: Bound
     high: Bound

@@ -70,12 +70,13 @@ class Atom:
     def __post_init__(self):
         """A hashable identity, kept: (variable count, canonical text of the polynomial, relation)."""
         object.__setattr__(self, "key", (self.poly.context().nvars(), self.text or str(self.poly), self.rel))
+        object.__setattr__(self, "hash", hash(self.key))
 
     def __eq__(self, other):
         return isinstance(other, Atom) and self.key == other.key
 
     def __hash__(self):
-        return hash(self.key)
+        return self.hash
 
 
 @dataclass(frozen=True)

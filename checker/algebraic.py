@@ -251,11 +251,11 @@ def _same_number(a: RealAlgebraic, b: RealAlgebraic) -> bool:
 
 
 def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:
-    """The exact sign of a - b: equality by minimal forms, otherwise bisect until the intervals are disjoint."""
+    """The exact sign of a - b: strictly disjoint intervals decide it, else equality by minimal forms, else bisection."""
     if a.is_rational() and b.is_rational():
         return (a.low > b.low) - (a.low < b.low)
     a, b = reduced(a), reduced(b)
-    if _same_number(a, b):
+    if not (a.high < b.low or b.high < a.low) and _same_number(a, b):
         return 0
     while True:
         if a.high <= b.low:
