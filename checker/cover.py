@@ -289,15 +289,16 @@ def check_lift(r: Replay, seg: Segment, node: Node, here: AtSample, level: int, 
     child = r.cert.nodes.get(seg.child)
     if child is None:
         raise Rejection("LIFT", f"node {seg.child} is not declared", seg.line)
-    declared: dict[str, fmpz_mpoly] = {}
     for pid in seg.keep:
         if pid not in r.polys:
             raise Rejection("LIFT", f"polynomial {pid} is not declared", seg.line)
         if r.level(r.polys[pid]) > level:
             raise Rejection("LIFT", f"declared {pid} involves a variable after x{level}", seg.line)
+    passed = check_node(r, child, node.sample + (seg.sample,))   # first: its factors are then known
+    declared: dict[str, fmpz_mpoly] = {}
+    for pid in seg.keep:
         if not r.polys[pid].is_constant():
             declared.update(r.factors(r.polys[pid]))
-    passed = check_node(r, child, node.sample + (seg.sample,))
     missing = passed - declared.keys()
     if missing:
         raise Rejection("PROJECT", f"projection not declared: {len(missing)} polynomial(s) that "
