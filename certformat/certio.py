@@ -124,6 +124,7 @@ def _bound(text: str):
 
 class _Where:
     """The file and line of a statement, for errors."""
+    __slots__ = ("path", "line", "text")
 
     def __init__(self, path: str, line: int, text: str):
         self.path, self.line, self.text = path, line, text
@@ -224,7 +225,8 @@ def read_certificate(text: str, path: str = "<certificate>") -> Certificate:
     cert = None
     for number, raw in enumerate(text.split("\n"), 1):
         raw = raw[:-1] if raw.endswith("\r") else raw
-        keyword = _KEYWORD.match(raw)[1]
+        words = raw.split(None, 1)                          # the usual line: a keyword, then a blank
+        keyword = words[0] if words and words[0] in _STATEMENT else _KEYWORD.match(raw)[1]
         if keyword in ("", "%"):
             continue
         line = _Where(path, number, raw)
