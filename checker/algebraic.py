@@ -23,9 +23,10 @@ Algorithms, each with the theorem it rests on:
   the midpoint tells which half holds it (intermediate value theorem).
 * **Isolation** -- a quadratic by its closed form (:func:`isolate_quadratic`).
   Otherwise all complex roots lie in ``|z| < B`` (Fujiwara's bound,
-  :func:`root_bound`), and ``(-B, B)`` is halved until each piece holds 0 or 1
-  roots, counted by Sturm's theorem (one new evaluation of the sequence per halving;
-  rational midpoints are never roots of an irreducible polynomial of degree >= 2).
+  :func:`root_bound`), and ``(-B, B)`` is halved until each piece has 0 or 1
+  sign variations by Descartes' rule of signs after the Möbius map of the piece
+  onto ``(0, oo)`` (:func:`descartes_bound`; Collins and Akritas 1976).  For a
+  squarefree polynomial this ends (Vincent's theorem; Alesina and Galuzzi 1998).
 * **Refinement** -- Newton's iterates (in Arb arithmetic) only *suggest* a narrow
   interval; it is used when ``g`` changes sign across it, otherwise the interval is halved.
 * **Signs at rationals** -- ``g(x)`` at a rational ``x`` is first enclosed by an Arb
@@ -138,6 +139,14 @@ def root_bound(g: fmpz_poly) -> fmpz:
     n, top = len(lower), int(abs(lead).bit_length())
     e = max((-((top - 1 - int(abs(c).bit_length())) // (n - i)) for i, c in enumerate(lower) if c), default=0)
     return fmpz(2) ** (1 + max(e, 0))
+
+
+def descartes_bound(g: fmpz_poly, a: fmpq, b: fmpq) -> int:
+    """Sign variations of (1 + x)^n g((a + bx) / (1 + x)), n = deg g: x > 0 maps onto (a, b), so this bounds the roots
+    of g in (a, b), counted with multiplicity, and has their parity (Descartes' rule of signs); 1 means exactly one."""
+    shifted = fmpq_poly(g)(fmpq_poly([a, b - a])).numer()         # a positive multiple: the same signs
+    signs = [c > 0 for c in fmpz_poly(shifted.coeffs()[::-1])(fmpz_poly([1, 1])).coeffs() if c]
+    return sum(1 for u, v in zip(signs, signs[1:]) if u != v)
 
 
 def check_isolating(a: RealAlgebraic) -> None:
@@ -260,16 +269,16 @@ def isolate(g: fmpz_poly) -> list[RealAlgebraic]:
     """Isolating intervals, increasing, for the real roots of g, irreducible of degree >= 2 (module docstring: Isolation)."""
     if g.degree() == 2:
         return isolate_quadratic(g)
-    seq, bound = sturm_sequence(fmpq_poly(g)), fmpq(root_bound(g))
-    pending, found = [(-bound, bound, sign_changes(seq, -bound), sign_changes(seq, bound))], []
+    bound = fmpq(root_bound(g))
+    pending, found = [(-bound, bound)], []
     while pending:
-        low, high, v_low, v_high = pending.pop()       # g has v_low - v_high roots in (low, high) (Sturm)
-        if v_low - v_high == 1:
+        low, high = pending.pop()
+        n = descartes_bound(g, low, high)
+        if n == 1:
             found.append(RealAlgebraic(g, low, high, minimal=True))
-        elif v_low - v_high > 1:
+        elif n > 1:
             mid = (low + high) / 2
-            v_mid = sign_changes(seq, mid)
-            pending += [(mid, high, v_mid, v_high), (low, mid, v_low, v_mid)]
+            pending += [(mid, high), (low, mid)]
     return found
 
 

@@ -10,7 +10,7 @@ from fractions import Fraction
 
 import pytest
 import sympy
-from flint import arb, fmpq, fmpq_poly, fmpz_poly
+from flint import arb, fmpq, fmpz_poly
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
@@ -551,20 +551,16 @@ def test_zero_bound_is_below_every_nonzero_conjugate_value(terms, d0, d1):
 
 
 # --------------------------------------------------------------------------
-# Sturm isolation, Newton hints, and the rational fast path of AtSample.
+# Descartes isolation, Newton hints, and the rational fast path of AtSample.
 
-def test_sturm_isolation_worked_example():
-    from checker.algebraic import count_roots, isolate, sign_of_value, sturm_sequence
-    # by hand, g = x^3 - 3x + 1: the sequence is g, x^2 - 1 (g' / 3), 2x - 1, 3/4 (each scaled by a positive
-    # number); signs at -2: - + - +, at 0: + - - +, at 2: + + + +, so 3, 2 and 0 changes: one root in (-2, 0)
-    # and two in (0, 2) (about -1.879, 0.347 and 1.532, the values 2cos(2πk/9): common-practice fact)
-    g = fmpz_poly([1, -3, 0, 1])
-    seq = sturm_sequence(fmpq_poly(g))
-    assert count_roots(seq, fmpq(-2), fmpq(0)) == 1 and count_roots(seq, fmpq(0), fmpq(2)) == 2
-    roots = isolate(g)
-    assert len(roots) == 3 and all(a.high <= b.low for a, b in zip(roots, roots[1:]))
-    assert all(sign_of_value(g, a.low) * sign_of_value(g, a.high) < 0 for a in roots)
-    assert isolate(fmpz_poly([63, 0, 70, 0, 15])) == []    # 15x^4 + 70x^2 + 63 has no real root
+def test_descartes_bound_worked_example():
+    from checker.algebraic import descartes_bound
+    # by hand: (1+x)^2 g(2x/(1+x)) for g = x^2 - 2 is 2x^2 - 4x - 2: one variation, one root (sqrt 2) in (0, 2);
+    # on (-2, 2): (2x-2)^2 - 2(1+x)^2 = 2x^2 - 12x + 2: two variations (the roots -sqrt 2 and sqrt 2)
+    g = fmpz_poly([-2, 0, 1])
+    assert descartes_bound(g, fmpq(0), fmpq(2)) == 1
+    assert descartes_bound(g, fmpq(-2), fmpq(2)) == 2
+    assert descartes_bound(g, fmpq(2), fmpq(3)) == 0
 
 
 def test_refinement_survives_a_cycling_newton_hint():
