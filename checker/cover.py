@@ -35,16 +35,6 @@ class Replay:
     factor_memo: dict[str, dict] = field(default_factory=dict)
     projections: dict[tuple, set] = field(default_factory=dict)
     seen: dict[int, tuple] = field(default_factory=dict)
-    univariate: dict[str, fmpq_poly] = field(default_factory=dict)
-
-    def __post_init__(self):
-        """Each declared polynomial in x1 alone as a univariate one, read off its terms (its value at the empty sample)."""
-        for pid, terms in self.cert.polys.items():
-            if self.nvars and not any(any(e[1:]) for e in terms):
-                coeffs = [0] * (max((e[0] for e in terms), default=0) + 1)
-                for e, c in terms.items():
-                    coeffs[e[0]] = c
-                self.univariate[self.key(self.polys[pid])] = fmpq_poly(coeffs)
 
     def _of(self, f: fmpz_mpoly) -> tuple:
         """(f, P.key(f), P.level(f)), once per object in this check (the entry keeps f alive, so
@@ -105,7 +95,7 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
     require_sample_degree(r, sample, node.line)
     if not node.segments:
         raise Rejection("COVER", f"node {node.id} has no intervals", node.line)
-    here = AtSample(sample, r.key, r.factor_memo.get, r.univariate.get)
+    here = AtSample(sample, r.key, r.factor_memo.get)
     realized = [realize_interval(r, seg, here, level) for seg in node.segments]
     require_covers_line(realized, node)
     relevant: list[fmpz_mpoly] = []
@@ -128,8 +118,8 @@ class AtSample:
     at a rational sample all from the substituted polynomial, at the empty one by the factors
     already known for it (SOUNDNESS.md, ROOTS)."""
 
-    def __init__(self, sample, key, known=dict().get, univariate=dict().get):
-        self.key, self.known, self.univariate = key, known, univariate
+    def __init__(self, sample, key, known=dict().get):
+        self.key, self.known = key, known
         self.memo: dict[tuple, object] = {}
         self.rational = all(a.is_rational() for a in sample)
         self.sample = sample if self.rational else tuple(refine(a, fmpq(1, 2 ** 64)) for a in sample)  # once, not per sign
@@ -141,8 +131,7 @@ class AtSample:
         return self.memo[k]
 
     def _substituted(self, f: fmpz_mpoly, sample) -> fmpq_poly:
-        u = None if sample else self.univariate(self.key(f))
-        return at_rational_point(f, [a.low for a in sample]) if u is None else u
+        return at_rational_point(f, [a.low for a in sample])
 
     def _substituted_roots(self, f: fmpz_mpoly, sample) -> list[RealAlgebraic]:
         known = None if sample else self.known(self.key(f))
