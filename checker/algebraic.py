@@ -67,7 +67,7 @@ def _to_fmpq(q) -> fmpq:
     if isinstance(q, Fraction):
         return fmpq(q.numerator, q.denominator)
     if isinstance(q, (fmpq, fmpz, int)):
-        return fmpq(q)
+        return q if isinstance(q, fmpq) else fmpq(q)
     raise TypeError(f"not an exact rational: {q!r}")
 
 
@@ -88,7 +88,7 @@ class RealAlgebraic:
     @staticmethod
     def rational(q) -> RealAlgebraic:
         """The rational q = num/den, defined by den*x - num."""
-        q = q if isinstance(q, fmpq) else _to_fmpq(q)
+        q = _to_fmpq(q)
         return RealAlgebraic(fmpz_poly([-q.p, q.q]), q, q, minimal=True)
 
     def __hash__(self):
