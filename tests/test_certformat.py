@@ -140,3 +140,18 @@ def test_malformed_statements_are_named(bad, words):
     with pytest.raises(InputError) as err:
         read_certificate(text, "c.cert")
     assert err.value.line == line and all(w in str(err.value) for w in words), str(err.value)
+
+
+@pytest.mark.parametrize("bad", [
+    "poly p3 = " + "*".join(["x1"] * 20000) + " $",            # a long product, bad at the end
+    "poly p3 = " + " - ".join(["- x1^2"] * 20000) + " -",       # a long sum of doubled signs, cut short
+    "node c1 sample " + " ".join(f"n{i}" for i in range(20000)) + " x",
+    "lemma L1 excludes " + " ".join(f"~a{i}" for i in range(20000)) + " by",
+])
+def test_long_malformed_lines_are_rejected_without_backtracking(bad):
+    # each form is matched against the raw line: a line of 20 000 tokens that fails only at its end must
+    # still be rejected, naming its line (a pattern that backtracked badly would hang here instead)
+    text = EXAMPLE.replace("poly p3 = x1\n", bad + "\n") if bad.startswith("poly") else EXAMPLE + bad + "\n"
+    with pytest.raises(InputError) as err:
+        read_certificate(text, "c.cert")
+    assert err.value.line == text[:text.index(bad)].count("\n") + 1
