@@ -297,15 +297,20 @@ def isolate_quadratic(g: fmpz_poly) -> list[RealAlgebraic]:
             RealAlgebraic(g, ends[2], ends[3], minimal=True)]
 
 
-def real_roots(f: fmpz_poly) -> list[RealAlgebraic]:
+def real_roots(f: fmpz_poly, memo: dict | None = None) -> list[RealAlgebraic]:
     """The distinct real roots of f != 0 in increasing order, each isolated per irreducible factor of f (:func:`isolate`)."""
     if f.is_zero():
         raise KernelError("the zero polynomial has every number as a root")
-    return roots_of_factors([f] if f.degree() == 1 else [g for g, _ in f.factor()[1]])
+    return roots_of_factors([f] if f.degree() == 1 else [g for g, _ in f.factor()[1]], memo)
 
 
-def roots_of_factors(factors) -> list[RealAlgebraic]:
-    """The real roots of distinct polynomials irreducible over Q (so no root is shared), increasing:
-    -g0/g1 for a linear g, else :func:`isolate`."""
-    roots = (z for g in factors for z in ([RealAlgebraic.rational(fmpq(-g[0], g[1]))] if g.degree() == 1 else isolate(g)))
+def roots_of_factors(factors, memo: dict | None = None) -> list[RealAlgebraic]:
+    """The real roots of distinct polynomials irreducible over Q (so no root is shared), increasing: -g0/g1 for a
+    linear g, the closed form for a quadratic, else :func:`isolate` once per g kept in ``memo`` (it depends on g alone)."""
+    memo = {} if memo is None else memo
+    for g in factors:
+        if g.degree() > 2 and str(g) not in memo:
+            memo[str(g)] = isolate(g)
+    roots = (z for g in factors for z in ([RealAlgebraic.rational(fmpq(-g[0], g[1]))] if g.degree() == 1 else
+                                          memo[str(g)] if g.degree() > 2 else isolate_quadratic(g)))
     return sorted(roots, key=cmp_to_key(compare))

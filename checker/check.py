@@ -89,10 +89,8 @@ def require_size(cert: Certificate, limits: Limits) -> None:
             raise Rejection("LIMITS", f"{pid} has a coefficient over "
                             f"{limits.max_coefficient_bits} bits", cert.lines[pid])
     for nid, num in cert.numbers.items():
-        parts = list(num.poly or ()) + [num.low.numerator, num.low.denominator,
-                                        num.high.numerator, num.high.denominator]
-        if len(num.poly or ()) - 1 > limits.max_degree or \
-                max(map(abs, parts)).bit_length() > limits.max_coefficient_bits:
+        parts = [*(num.poly or ()), num.low.numerator, num.low.denominator, num.high.numerator, num.high.denominator]
+        if len(num.poly or ()) - 1 > limits.max_degree or max(map(abs, parts)).bit_length() > limits.max_coefficient_bits:
             raise Rejection("LIMITS", f"{nid} exceeds the degree or size limits", num.line)
 
 

@@ -35,6 +35,7 @@ class Replay:
     factor_memo: dict[str, dict] = field(default_factory=dict)
     projections: dict[tuple, set] = field(default_factory=dict)
     seen: dict[int, tuple] = field(default_factory=dict)
+    isolated: dict[str, list] = field(default_factory=dict)
 
     def _of(self, f: fmpz_mpoly) -> tuple:
         """(f, P.key(f), P.level(f)), once per object in this check (the entry keeps f alive, so
@@ -95,7 +96,7 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
     require_sample_degree(r, sample, node.line)
     if not node.segments:
         raise Rejection("COVER", f"node {node.id} has no intervals", node.line)
-    here = AtSample(sample, r.key, r.factor_memo.get)
+    here = AtSample(sample, r.key, r.factor_memo.get, r.isolated)
     realized = [realize_interval(r, seg, here, level) for seg in node.segments]
     require_covers_line(realized, node)
     relevant: list[fmpz_mpoly] = []
@@ -118,8 +119,8 @@ class AtSample:
     at a rational sample all from the substituted polynomial, at the empty one by the factors
     already known for it (SOUNDNESS.md, ROOTS)."""
 
-    def __init__(self, sample, key, known=dict().get):
-        self.key, self.known = key, known
+    def __init__(self, sample, key, known=dict().get, isolated=None):
+        self.key, self.known, self.isolated = key, known, isolated
         self.memo: dict[tuple, object] = {}
         self.rational = all(a.is_rational() for a in sample)
         self.sample = sample if self.rational else tuple(refine(a, fmpq(1, 2 ** 64)) for a in sample)  # once, not per sign
@@ -136,8 +137,8 @@ class AtSample:
     def _substituted_roots(self, f: fmpz_mpoly, sample) -> list[RealAlgebraic]:
         known = None if sample else self.known(self.key(f))
         if known is None:
-            return roots_of_substituted(f, self._once(self._substituted, f))
-        return roots_of_factors([self._once(self._substituted, g).numer() for g in known.values()])
+            return roots_of_substituted(f, self._once(self._substituted, f), self.isolated)
+        return roots_of_factors([self._once(self._substituted, g).numer() for g in known.values()], self.isolated)
 
     def roots(self, f: fmpz_mpoly) -> list[RealAlgebraic]:
         return self._once(self._substituted_roots if self.rational else real_roots_at, f)
@@ -328,15 +329,9 @@ def require_nearest_roots(seg: Segment, here: AtSample, t, low, high, q) -> None
     above = [z for z in roots if compare(z, t) > 0]
     want_low = max(below, key=cmp_to_key(compare)) if below else NEG_INF
     want_high = min(above, key=cmp_to_key(compare)) if above else POS_INF
-    if not (_same(low, want_low) and _same(high, want_high)):
+    if less(low, want_low) or less(want_low, low) or less(high, want_high) or less(want_high, high):
         raise Rejection("LIFT", f"{seg.interval} is not bounded by the nearest roots of the "
                         "declared set around the sample", seg.line)
-
-
-def _same(a, b) -> bool:
-    if isinstance(a, str) or isinstance(b, str):
-        return a == b
-    return compare(a, b) == 0
 
 
 def project(r: Replay, relevant: list, here: AtSample, level: int, node: Node) -> set[str]:

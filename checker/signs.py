@@ -91,11 +91,11 @@ def at_rational_point(p: fmpz_mpoly, values: Sequence[fmpq]) -> fmpq_poly:
     return fmpq_poly(coeffs)
 
 
-def roots_of_substituted(p: fmpz_mpoly, u: fmpq_poly) -> list[RealAlgebraic]:
+def roots_of_substituted(p: fmpz_mpoly, u: fmpq_poly, memo: dict | None = None) -> list[RealAlgebraic]:
     """The real roots of p at a rational point, from u = at_rational_point(p, point) (never given when u = 0)."""
     if u.is_zero():
         raise KernelError(f"{p} vanishes identically in the next variable at the point")
-    return real_roots(u.numer())
+    return real_roots(u.numer(), memo)
 
 
 def _eliminate_algebraic(F: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpz_mpoly:
