@@ -64,7 +64,7 @@ def _int(text: str) -> int:  # any length: CPython's int(str) refuses more than 
 
 def _rational(text: str, line: _Where) -> Fraction:
     """``("+" | "-")? INT ("/" INT)?``"""
-    num, _, den = text.replace(" ", "").replace("\t", "").lstrip("+-").partition("/")
+    num, _, den = "".join(text.split()).lstrip("+-").partition("/")
     den = _int(den) if den else 1
     if den == 0:
         raise line.error("zero denominator")
@@ -74,7 +74,7 @@ def _rational(text: str, line: _Where) -> Fraction:
 def _terms(text: str) -> list[tuple[int, list[tuple[str, int]]]]:
     """The terms (coefficient, [(variable, exponent)]) of a polynomial matched by ``_POLY``."""
     terms = []
-    for first, second, body in _TERM.findall(text.replace(" ", "").replace("\t", "")):  # no two words meet
+    for first, second, body in _TERM.findall("".join(text.split())):  # no two words meet
         factors = body.split("*")
         coeff = _int(factors.pop(0)) if factors[0][0].isdigit() else 1
         powers = [(var, _int(e or "1")) for var, _, e in (f.partition("^") for f in factors)]
