@@ -1,9 +1,9 @@
 """The data model of certificates (SPEC.md): plain, exact, free of flint objects; the small
 records are named tuples (immutable, and quick to build: a certificate has thousands of them).
 
-Polynomials are ``{exponent tuple: int}`` over the certificate's variables
-``x1 … xn`` (exponent tuples have length n); univariate number polynomials are
-coefficient tuples, constant term first.  Every record keeps the line it was
+Polynomials are their text (SPEC §2, §3) with the blanks removed, in the certificate's
+variables ``x1 … xn`` or, for a number, in ``z``; the checker hands it to flint's parser
+(sparse, so the size limits apply before anything is expanded).  Every record keeps the line it was
 read from (0 when built in memory) so that a rejection can name it.
 """
 from __future__ import annotations
@@ -11,8 +11,6 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import NamedTuple
-
-Poly = dict[tuple[int, ...], int]
 
 VERSION = 1
 
@@ -27,7 +25,7 @@ class VarDecl(NamedTuple):
 
 class Number(NamedTuple):
     """``num``: the rational ``low`` (when ``poly`` is None) or the root of ``poly`` in (low, high)."""
-    poly: tuple[int, ...] | None
+    poly: str | None
     low: Fraction
     high: Fraction
     line: int = 0
@@ -120,7 +118,8 @@ class Certificate:
     kind: str
     sha256: str
     variables: list[VarDecl]
-    polys: dict[str, Poly] = field(default_factory=dict)
+    polys: dict[str, str] = field(default_factory=dict)
+    """Text of each polynomial, blanks removed (``-3*x1*x2+7``)."""
     numbers: dict[str, Number] = field(default_factory=dict)
     atoms: dict[str, AtomClaim] = field(default_factory=dict)
     lemmas: list[Lemma] = field(default_factory=list)

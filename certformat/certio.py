@@ -15,7 +15,7 @@ from fractions import Fraction
 from flint import fmpz
 
 from .certificate import (NEG_INF, POS_INF, AtomClaim, Certificate, Inference, Interval,
-                          Lemma, Literal, Node, Number, Poly, Root, Segment, VarDecl)
+                          Lemma, Literal, Node, Number, Root, Segment, VarDecl)
 from .errors import InputError, read_limited
 
 MAX_CERTIFICATE_BYTES = 256 * 1024 * 1024
@@ -35,8 +35,6 @@ _INT, _POWER, _LIT = "[0-9]+", r"(?:x[0-9]+|z)(?: \^ [0-9]+)?", "(?:~ )?[abd][0-
 _RATIONAL = rf"(?:[-+] )?{_INT}(?: / {_INT})?"
 _BODY = rf"(?:{_INT}|{_POWER})(?: \* {_POWER})*"
 _POLY = rf"(?:[-+] )?{_BODY}(?: [-+] (?:[-+] )?{_BODY})*"
-# A term of a polynomial with its blanks removed: its two optional signs, then its body.
-_TERM = re.compile(r"([-+]?)([-+]?)((?:[0-9]+|(?:x[0-9]+|z)(?:\^[0-9]+)?)(?:\*(?:x[0-9]+|z)(?:\^[0-9]+)?)*)")
 _BOUND = r"-inf|\+inf|p[0-9]+#[0-9]+"
 _FORMS = {
     "tessella": rf"tessella ({_INT}) (unsat|sat)",
@@ -54,6 +52,7 @@ _FORMS = {
     "value": "value (x[0-9]+) (n[0-9]+)",
     "bool": rf"bool ({_INT}) (true|false)"}
 _LITERAL = re.compile(r"(~?)[ \t]*([abd][0-9]+)")
+_VARIABLE = re.compile(r"x[0-9]+|z")
 _STATEMENT = {keyword: re.compile(r"[ \t]*" + form.replace(" ", _BLANKS) + r"[ \t]*(?:%.*)?", re.ASCII)
               for keyword, form in _FORMS.items()}
 
@@ -69,44 +68,6 @@ def _rational(text: str, line: _Where) -> Fraction:
     if den == 0:
         raise line.error("zero denominator")
     return Fraction(-_int(num) if text[0] == "-" else _int(num), den)
-
-
-def _terms(text: str) -> list[tuple[int, list[tuple[str, int]]]]:
-    """The terms (coefficient, [(variable, exponent)]) of a polynomial matched by ``_POLY``."""
-    terms = []
-    for first, second, body in _TERM.findall("".join(text.split())):  # no two words meet
-        factors = body.split("*")
-        coeff = _int(factors.pop(0)) if factors[0][0].isdigit() else 1
-        powers = [(var, _int(e or "1")) for var, _, e in (f.partition("^") for f in factors)]
-        terms.append((-coeff if (first == "-") != (second == "-") else coeff, powers))
-    return terms
-
-
-def _monomials_to_poly(text: str, nvars: int, line: _Where) -> Poly:
-    """Sum the terms of a polynomial in x1 … xn into an exponent dictionary."""
-    poly: Poly = {}
-    for coeff, powers in _terms(text):
-        exps = [0] * nvars
-        for var, e in powers:
-            k = _int(var[1:]) if var != "z" else 0
-            if not 1 <= k <= nvars:
-                raise line.error(f"variable {var} is not declared", var)
-            exps[k - 1] += e
-        key = tuple(exps)
-        poly[key] = poly.get(key, 0) + coeff
-    return {e: c for e, c in poly.items() if c != 0}
-
-
-def _univariate(text: str, line: _Where) -> tuple[int, ...]:
-    """Coefficients (constant first) of a polynomial in z."""
-    coeffs: dict[int, int] = {}
-    for coeff, powers in _terms(text):
-        if any(var != "z" for var, _ in powers):
-            raise line.error("a number polynomial may use only z", text)
-        e = sum(k for _, k in powers)
-        coeffs[e] = coeffs.get(e, 0) + coeff
-    top = max((e for e, c in coeffs.items() if c), default=-1)
-    return tuple(coeffs.get(e, 0) for e in range(top + 1))
 
 
 def _literals(text: str) -> tuple[Literal, ...]:
@@ -157,7 +118,10 @@ def _var(cert: Certificate, m, line: _Where) -> None:
 
 
 def _poly(cert: Certificate, m, line: _Where) -> None:
-    cert.polys[_declare(cert, line, m[1])] = _monomials_to_poly(m[2], len(cert.variables), line)
+    for var in set(_VARIABLE.findall(m[2])):      # x1 … xn, no leading zero
+        if var == "z" or var[1] == "0" or _int(var[1:]) > len(cert.variables):
+            raise line.error(f"variable {var} is not declared", var)
+    cert.polys[_declare(cert, line, m[1])] = "".join(m[2].split())
 
 
 def _num(cert: Certificate, m, line: _Where) -> None:
@@ -166,7 +130,9 @@ def _num(cert: Certificate, m, line: _Where) -> None:
         q = _rational(m[2], line)
         cert.numbers[ident] = Number(None, q, q, line.line)
     else:
-        cert.numbers[ident] = Number(_univariate(m[3], line), _rational(m[4], line),
+        if "x" in m[3]:
+            raise line.error("a number polynomial may use only z", m[3])
+        cert.numbers[ident] = Number("".join(m[3].split()), _rational(m[4], line),
                                      _rational(m[5], line), line.line)
 
 

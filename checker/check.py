@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from flint import fmpq, fmpz_poly
+from flint import fmpq
 
 from certformat.certificate import Certificate, Literal
 from certformat.clauses import ClausalForm, clausal_form
@@ -41,9 +41,12 @@ def check(problem: Problem, cert: Certificate, limits: Limits | None = None) -> 
     try:
         require_hash(problem, cert)
         order = require_variables(problem, cert)
-        require_size(cert, limits)
-        polys = {pid: P.to_flint(p, len(order)) for pid, p in cert.polys.items()}
-        numbers = {nid: checked_number(nid, num, cert, limits) for nid, num in cert.numbers.items()}
+        ctx = P.context(len(order))
+        polys = {pid: P.to_flint(p, ctx) for pid, p in cert.polys.items()}
+        defining = {nid: P.to_flint(num.poly, P.Z) for nid, num in cert.numbers.items() if num.poly}
+        require_size(cert, polys | defining, limits)       # on sparse polynomials, before any is dense
+        numbers = {nid: checked_number(nid, num, defining.get(nid), limits)
+                   for nid, num in cert.numbers.items()}
         if cert.kind == "sat":
             check_witness(problem, cert, order, numbers)
         else:
@@ -77,24 +80,25 @@ def require_variables(problem: Problem, cert: Certificate) -> list[int]:
     return order
 
 
-def require_size(cert: Certificate, limits: Limits) -> None:
+def require_size(cert: Certificate, polys, limits: Limits) -> None:
     """Rule LIMITS: degrees, coefficient sizes and step counts stay within the limits."""
     steps = len(cert.steps) + sum(1 + len(nd.segments) for nd in cert.nodes.values())
     if steps > limits.max_steps:
         raise Rejection("LIMITS", f"{steps} steps exceed the limit {limits.max_steps}", 0)
-    for pid, poly in cert.polys.items():
-        if max(map(max, filter(None, poly)), default=0) > limits.max_degree:
+    for pid, poly in polys.items():
+        if max(poly.degrees(), default=0) > limits.max_degree:
             raise Rejection("LIMITS", f"{pid} has degree above {limits.max_degree}", cert.lines[pid])
-        if max(map(abs, poly.values()), default=0).bit_length() > limits.max_coefficient_bits:
+        if max(map(abs, poly.coeffs()), default=0).bit_length() > limits.max_coefficient_bits:
             raise Rejection("LIMITS", f"{pid} has a coefficient over "
                             f"{limits.max_coefficient_bits} bits", cert.lines[pid])
     for nid, num in cert.numbers.items():
-        parts = [*(num.poly or ()), num.low.numerator, num.low.denominator, num.high.numerator, num.high.denominator]
-        if len(num.poly or ()) - 1 > limits.max_degree or max(map(abs, parts)).bit_length() > limits.max_coefficient_bits:
-            raise Rejection("LIMITS", f"{nid} exceeds the degree or size limits", num.line)
+        ends = [num.low.numerator, num.low.denominator, num.high.numerator, num.high.denominator]
+        if max(map(abs, ends)).bit_length() > limits.max_coefficient_bits:
+            raise Rejection("LIMITS", f"{nid} has an interval end over "
+                            f"{limits.max_coefficient_bits} bits", num.line)
 
 
-def checked_number(nid: str, num, cert: Certificate, limits: Limits) -> RealAlgebraic:
+def checked_number(nid: str, num, defining, limits: Limits) -> RealAlgebraic:
     """Rule NUMBER: a rational, or a polynomial with exactly one root in an open interval
     (kept in minimal form: defined by the irreducible factor that vanishes at it)."""
     limits.tick(num.line)
@@ -103,7 +107,7 @@ def checked_number(nid: str, num, cert: Certificate, limits: Limits) -> RealAlge
         return RealAlgebraic.rational(low)
     high = fmpq(num.high.numerator, num.high.denominator)
     try:
-        return reduced(RealAlgebraic(fmpz_poly(list(num.poly)), low, high))
+        return reduced(RealAlgebraic(P.univariate(defining), low, high))
     except KernelError as err:
         raise Rejection("NUMBER", f"{nid}: {err}", num.line) from None
 
@@ -120,7 +124,7 @@ def atom_literals(problem: Problem, cert: Certificate, cf: ClausalForm, order: l
             raise Rejection("ATOM", f"polynomial {claim.poly} is not declared", claim.line)
         atom = cf.atoms[k - 1]
         mine = P.permuted(atom.poly, order) if order != sorted(order) else atom.poly
-        if mine != polys[claim.poly] or atom.rel != claim.rel:
+        if not P.same_terms(mine, polys[claim.poly]) or atom.rel != claim.rel:
             raise Rejection("ATOM", f"{aid} is not the problem's atom {k}", claim.line)
         out[aid] = (polys[claim.poly], atom.rel)
         out["~" + aid] = (polys[claim.poly], NEGATED[atom.rel])

@@ -1,32 +1,49 @@
-"""Polynomials as the checker needs them: exact flint objects in the certificate's order.
+"""Polynomials as the checker needs them: exact flint objects in the certificate's variables.
 
-Every polynomial here lives in ``poly_context(n)`` with generators ``x0 … x(n-1)``
-standing for the certificate's ``x1 … xn`` (lex order, so ``x(n-1)`` is the
-last variable).  "Level" of a polynomial is 1 + the index of its last variable
-(0 for constants), as in cylindrical algebraic decomposition (Collins 1975).
+Every polynomial here lives in ``context(n)``, whose generators are the certificate's
+``x1 … xn`` (lex order, so ``xn`` is the last variable).  "Level" of a polynomial is
+the index of its last variable (0 for constants), as in cylindrical algebraic
+decomposition (Collins 1975).
 """
 from __future__ import annotations
 
 from math import lcm
 from typing import Iterator
 
-from flint import fmpq_mpoly, fmpz_mpoly
-
-from certformat.formula import poly_context
+from flint import fmpq_mpoly, fmpz_mpoly, fmpz_mpoly_ctx, fmpz_poly
 
 
-def to_flint(poly: dict[tuple[int, ...], int], nvars: int) -> fmpz_mpoly:
-    """The flint polynomial of an exponent dictionary over ``nvars`` variables."""
-    ctx = poly_context(nvars)
-    if nvars == 0:
-        return ctx.from_dict({(0,): c for e, c in poly.items()})
-    return ctx.from_dict(poly)
+def context(nvars: int) -> fmpz_mpoly_ctx:
+    """The flint context of polynomials in ``x1 … xn``, lex order (one unused generator when n = 0)."""
+    return fmpz_mpoly_ctx.get(tuple(f"x{i}" for i in range(1, max(nvars, 1) + 1)), "lex")
+
+
+Z = fmpz_mpoly_ctx.get(("z",), "lex")
+"""The context of the numbers' defining polynomials, in ``z``."""
+
+
+def to_flint(text: str, ctx: fmpz_mpoly_ctx) -> fmpz_mpoly:
+    """The polynomial of a certificate's text (blanks removed) that the reader matched to SPEC §10 (flint's parser)."""
+    return fmpz_mpoly(text, ctx)
+
+
+def univariate(g: fmpz_mpoly) -> fmpz_poly:
+    """g, in one generator, as a dense univariate polynomial (made only once its degree is within the limits)."""
+    coeffs = [0] * (g.degrees()[0] + 1)
+    for (e,), c in zip(g.monoms(), g.coeffs()):
+        coeffs[e] = c
+    return fmpz_poly(coeffs)
 
 
 def permuted(poly: fmpz_mpoly, order: list[int]) -> fmpz_mpoly:
-    """Rename problem variable ``order[k]`` to certificate variable ``k`` (0-based)."""
+    """Rename problem variable ``order[k]`` to variable ``k`` (0-based) of the problem's context."""
     ctx = poly.context()
     return ctx.from_dict({tuple(e[j] for j in order): c for e, c in zip(poly.monoms(), poly.coeffs())})
+
+
+def same_terms(f: fmpz_mpoly, g: fmpz_mpoly) -> bool:
+    """f and g have the same terms (exponents in generator order, coefficients), whatever their generators' names."""
+    return f.monoms() == g.monoms() and f.coeffs() == g.coeffs()
 
 
 def level(f: fmpz_mpoly) -> int:

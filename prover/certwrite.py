@@ -7,11 +7,15 @@ checker reject.
 from __future__ import annotations
 
 import json
+import re
 from fractions import Fraction
 
-from flint import fmpz
+from flint import fmpz, fmpz_mpoly, fmpz_mpoly_ctx
 
-from certformat.certificate import Certificate, Number, Poly, Segment
+from certformat.certificate import Certificate, Number, Segment
+
+Poly = dict[tuple[int, ...], int]
+_BINARY_SIGN = re.compile(r"(?<=\w)([-+])")
 
 
 def poly_text(poly: Poly, var=lambda k: f"x{k + 1}") -> str:
@@ -29,6 +33,32 @@ def poly_text(poly: Poly, var=lambda k: f"x{k + 1}") -> str:
     return text[2:] if text.startswith("+ ") else "-" + text[2:]
 
 
+def compact(text: str) -> str:
+    """A polynomial's text as the data model keeps it: blanks removed."""
+    return "".join(text.split())
+
+
+def spaced(text: str) -> str:
+    """A compact polynomial text with its binary signs spaced, as :func:`poly_text` writes them."""
+    return _BINARY_SIGN.sub(r" \1 ", text)
+
+
+def poly_terms(text: str, nvars: int) -> Poly:
+    """The exponent dictionary of a certificate's polynomial text in ``x1 … xn``."""
+    ctx = fmpz_mpoly_ctx.get(tuple(f"x{i}" for i in range(1, max(nvars, 1) + 1)), "lex")
+    f = fmpz_mpoly(compact(text), ctx)
+    return {tuple(int(x) for x in e)[:nvars]: int(c) for e, c in zip(f.monoms(), f.coeffs())}
+
+
+def number_coefficients(text: str) -> list[int]:
+    """The coefficients, constant first, of a number's defining polynomial text in ``z``."""
+    f = fmpz_mpoly(compact(text), fmpz_mpoly_ctx.get(("z",), "lex"))
+    coeffs = [0] * (f.degrees()[0] + 1)
+    for (e,), c in zip(f.monoms(), f.coeffs()):
+        coeffs[e] = int(c)
+    return coeffs
+
+
 def rational_text(q: Fraction) -> str:
     """``p/q`` in lowest terms, or ``p`` for an integer."""
     q = Fraction(q)
@@ -40,8 +70,7 @@ def number_text(num: Number) -> str:
     """Right-hand side of a ``num`` line."""
     if num.poly is None:
         return rational_text(num.low)
-    uni = {(e,): c for e, c in enumerate(num.poly) if c}
-    return f"{poly_text(uni, lambda k: 'z')} @ ({rational_text(num.low)}, {rational_text(num.high)})"
+    return f"{spaced(num.poly)} @ ({rational_text(num.low)}, {rational_text(num.high)})"
 
 
 def _segment_text(seg: Segment) -> str:
@@ -66,7 +95,7 @@ def write_certificate(cert: Certificate) -> str:
     """The canonical text of a certificate (SPEC.md); deterministic."""
     lines = [f"tessella {cert.version} {cert.kind}", f"problem sha256 {cert.sha256}"]
     lines += [f"var x{v.index} = {v.problem_index} {json.dumps(v.name)}" for v in cert.variables]
-    lines += [f"poly {pid} = {poly_text(p)}" for pid, p in cert.polys.items()]
+    lines += [f"poly {pid} = {spaced(text)}" for pid, text in cert.polys.items()]
     lines += [f"num {nid} = {number_text(n)}" for nid, n in cert.numbers.items()]
     lines += [f"atom {aid} = {a.poly} {a.rel} 0" for aid, a in cert.atoms.items()]
     for lemma in cert.lemmas:

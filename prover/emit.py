@@ -14,7 +14,7 @@ from flint import fmpq, fmpz, fmpz_mpoly
 from certformat.certificate import (NEG_INF, POS_INF, AtomClaim, Certificate, Inference,
                                     Interval as CertInterval, Lemma, Literal as CertLiteral,
                                     Node as CertNode, Number, Root, Segment, VarDecl)
-from .certwrite import write_certificate
+from .certwrite import compact, poly_text, write_certificate
 from certformat.formula import Atom, Problem
 
 from .characterize import PolyStore
@@ -38,7 +38,8 @@ def number_record(a: RealAlg) -> Number:
         q = _fraction(a.value)
         return Number(None, q, q)
     low, high = canonical_interval(a)
-    return Number(tuple(int(c) for c in a.poly.coeffs()), _fraction(low), _fraction(high))
+    terms = {(e,): int(c) for e, c in enumerate(a.poly.coeffs()) if c}
+    return Number(compact(poly_text(terms, lambda k: "z")), _fraction(low), _fraction(high))
 
 
 def canonical_interval(a: RealAlg) -> tuple[fmpq, fmpq]:
@@ -87,7 +88,7 @@ class _Tables:
         if pid is None:
             pid = f"p{len(self._poly_ids) + 1}"
             self._poly_ids[key] = pid
-            self.cert.polys[pid] = _poly_dict(f)
+            self.cert.polys[pid] = compact(poly_text(_poly_dict(f)))
         return pid
 
     def stored(self, sid: int) -> str:

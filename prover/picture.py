@@ -20,9 +20,10 @@ from __future__ import annotations
 import io
 import math
 from fractions import Fraction
+from functools import partial
 
 from certformat.certificate import NEG_INF, POS_INF, Certificate, Literal, Node, Root
-from .certwrite import poly_text
+from .certwrite import number_coefficients, poly_terms, poly_text
 from certformat.formula import NEGATED
 
 MAX_PANELS = 4
@@ -57,10 +58,10 @@ def number_value(cert: Certificate, nid: str) -> float:
     num = cert.numbers[nid]
     if num.poly is None:
         return float(num.low)
-    low, high = num.low, num.high
+    low, high, coefficients = num.low, num.high, number_coefficients(num.poly)
     for _ in range(80):  # bisection on the sign, exact at rational points
         mid = (low + high) / 2
-        if _sign_change(num.poly, low, mid):
+        if _sign_change(coefficients, low, mid):
             high = mid
         else:
             low = mid
@@ -102,13 +103,18 @@ def _restrict(poly: dict, x1: float) -> list[float]:
     return out
 
 
+def _poly(cert: Certificate, pid: str) -> dict:
+    """The exponent dictionary of polynomial ``pid``."""
+    return poly_terms(cert.polys[pid], len(cert.variables))
+
+
 def _root_at(cert: Certificate, bound, x1: float, np) -> float:
     """The value of a bound of a level-2 node at abscissa x1 (nan when it does not exist)."""
     if bound == NEG_INF:
         return -math.inf
     if bound == POS_INF:
         return math.inf
-    roots = real_roots(_restrict(cert.polys[bound.poly], x1), np)
+    roots = real_roots(_restrict(_poly(cert, bound.poly), x1), np)
     return roots[bound.index - 1] if len(roots) >= bound.index else math.nan
 
 
@@ -118,7 +124,7 @@ def _root_level1(cert: Certificate, bound, np) -> float:
         return -math.inf
     if bound == POS_INF:
         return math.inf
-    roots = real_roots(_in_x1(cert.polys[bound.poly]), np)
+    roots = real_roots(_in_x1(_poly(cert, bound.poly)), np)
     return roots[bound.index - 1] if len(roots) >= bound.index else math.nan
 
 
@@ -138,7 +144,7 @@ def literal_text(cert: Certificate, lit: Literal, names: list[str]) -> str:
     if claim is None:
         return str(lit)
     rel = claim.rel if lit.positive else NEGATED[claim.rel]
-    return f"{poly_text(cert.polys[claim.poly], lambda k: names[k])} {rel} 0"
+    return f"{poly_text(_poly(cert, claim.poly), lambda k: names[k])} {rel} 0"
 
 
 def certificate_names(cert: Certificate) -> list[str]:
@@ -159,7 +165,7 @@ def _subtree(cert: Certificate, root: str) -> list[Node]:
 def _window(cert: Certificate, np):
     """A plotting window (x range, y range) around the samples and the critical abscissae."""
     xs, ys = [], []
-    for poly in cert.polys.values():
+    for poly in map(partial(_poly, cert), cert.polys):
         if all(e[1] == 0 for e in poly):
             xs += real_roots(_in_x1(poly), np)
     for lemma in cert.lemmas:
@@ -307,7 +313,7 @@ def _comparable(xr, yr) -> bool:
 def _zero_curves(ax, cert, poly_ids, xr, yr, np, colour="0.25") -> None:
     gx, gy = np.meshgrid(np.linspace(*xr, SWEEP), np.linspace(*yr, SWEEP))
     for pid in dict.fromkeys(poly_ids):
-        values = _evaluate(cert.polys[pid], (gx, gy), np)
+        values = _evaluate(_poly(cert, pid), (gx, gy), np)
         if np.all(np.isfinite(values)) and values.min() < 0 < values.max():
             ax.contour(gx, gy, values, levels=[0], colors=[colour], linewidths=0.8)
 

@@ -26,7 +26,7 @@ from certformat.certio import MAX_CERTIFICATE_BYTES, parse_certificate_bytes
 from certformat.errors import InputError, read_limited
 from certformat.problem import load_problem
 
-from .certwrite import number_text
+from .certwrite import number_text, poly_terms
 
 TRUSTED = ("checker", "certformat")
 TRUSTED_BUDGET = 2500
@@ -272,7 +272,7 @@ def _witness(problem, cert) -> list[dict]:
 def statistics(cert, cert_bytes: bytes) -> dict[str, int]:
     """Counts of what the certificate contains."""
     segments = [s for node in cert.nodes.values() for s in node.segments]
-    degrees = [sum(e) for p in cert.polys.values() for e in p]
+    degrees = [sum(e) for p in cert.polys.values() for e in poly_terms(p, len(cert.variables))]
     return {
         "bytes": len(cert_bytes),
         "lines": cert_bytes.count(b"\n"),

@@ -6,7 +6,7 @@ from hypothesis import given, settings, strategies as st
 
 from certformat.certificate import Certificate, Number, VarDecl
 from certformat.certio import read_certificate
-from prover.certwrite import write_certificate
+from prover.certwrite import poly_terms, poly_text, write_certificate
 from certformat.clauses import clausal_form
 from certformat.errors import InputError
 from certformat.formula import (And, Assertion, Iff, Not, Or, Problem, BoolVar, make_atom,
@@ -43,7 +43,7 @@ infer false
 def test_round_trip_is_exact():
     cert = read_certificate(EXAMPLE)
     assert write_certificate(cert) == EXAMPLE
-    assert cert.numbers["n2"] == Number((-2, 0, 1), Fraction(1), Fraction(3, 2), line=9)
+    assert cert.numbers["n2"] == Number("z^2-2", Fraction(1), Fraction(3, 2), line=9)
     assert cert.variables[1].name == 'a "quoted" name'
     assert cert.nodes["c1"].segments[1].keep == ("p1", "p2")
 
@@ -77,9 +77,9 @@ def test_malformed_certificates_name_their_line(text, line):
 def test_polynomial_text_round_trip(poly):
     poly = {e: c for e, c in poly.items() if c}
     cert = Certificate("unsat", "0" * 64, [VarDecl(k, k, f"v{k}") for k in (1, 2, 3)],
-                       polys={"p1": poly})
+                       polys={"p1": poly_text(poly)})
     again = read_certificate(write_certificate(cert))
-    assert again.polys["p1"] == poly
+    assert poly_terms(again.polys["p1"], 3) == poly          # the text flint reads is the dictionary written
 
 
 def _problem(*formulas, bools=()):
@@ -107,11 +107,11 @@ def test_numbers_longer_than_cpython_int_text_limit_round_trip():
     # CPython refuses int(str) beyond 4300 digits by default (common-practice fact, CPython 3.11
     # release notes); certificates may carry longer coefficients within the checker's limits
     big = 10 ** 5000 + 1
-    cert = Certificate("unsat", "0" * 64, [VarDecl(1, 1, "x")], polys={"p1": {(1,): -big, (0,): 3}},
+    cert = Certificate("unsat", "0" * 64, [VarDecl(1, 1, "x")], polys={"p1": poly_text({(1,): -big, (0,): 3})},
                        numbers={"n1": Number(None, Fraction(big, 7), Fraction(big, 7))})
     text = write_certificate(cert)
     again = read_certificate(text)
-    assert again.polys["p1"] == {(1,): -big, (0,): 3}
+    assert poly_terms(again.polys["p1"], 1) == {(1,): -big, (0,): 3}
     assert again.numbers["n1"].low == Fraction(big, 7)
     assert write_certificate(again) == text
 

@@ -90,3 +90,14 @@ def test_certificate_over_the_size_limit_is_an_input_error(tmp_path):
     path.write_text(CERT)
     with pytest.raises(InputError, match="over the limit"):
         load_certificate(str(path), max_bytes=100)
+
+
+@pytest.mark.parametrize("old, new", [
+    ("num n4 = 2", "num n4 = z^999999999999 - 2 @ (1, 2)"),
+    ("poly p3 = x1", "poly p3 = x1^999999999999*x2^999999999999 + x1"),
+], ids=["number", "polynomial"])
+def test_huge_exponents_are_rejected_before_anything_is_expanded(old, new):
+    # a dense coefficient list of degree 10^12 would exhaust memory: the degree limit is read
+    # off the sparse polynomial first
+    v = verdict(CERT.replace(old, new, 1))
+    assert not v.accepted and v.rule == "LIMITS" and "degree above" in v.reason, v

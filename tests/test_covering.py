@@ -313,8 +313,8 @@ def test_declared_sets_equal_what_the_checker_derives():
     text = prove(problem).certificate_text
     cert = read_certificate(text)
     order = require_variables(problem, cert)
-    polys = {pid: CP.to_flint(p, 2) for pid, p in cert.polys.items()}
-    numbers = {nid: checked_number(nid, num, cert, Limits()) for nid, num in cert.numbers.items()}
+    polys = {pid: CP.to_flint(p, CP.context(2)) for pid, p in cert.polys.items()}
+    numbers = {nid: checked_number(nid, num, num.poly and CP.to_flint(num.poly, CP.Z), Limits()) for nid, num in cert.numbers.items()}
     literals = atom_literals(problem, cert, clausal_form(problem), order, polys)
     compared = 0
     for node in cert.nodes.values():

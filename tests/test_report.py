@@ -197,7 +197,7 @@ def test_picture_numbers():
     assert real_roots([-2, 0, 1], __import__("numpy")) == pytest.approx([-2**0.5, 2**0.5])
     assert real_roots([1, 0, 1], __import__("numpy")) == []
     cert = Certificate("unsat", "0" * 64, [], numbers={
-        "n1": Number((-2, 0, 1), Fraction(1), Fraction(3, 2)),  # sqrt(2): common-practice fact
+        "n1": Number("z^2-2", Fraction(1), Fraction(3, 2)),  # sqrt(2): common-practice fact
         "n2": Number(None, Fraction(-7, 4), Fraction(-7, 4))})
     assert number_value(cert, "n1") == pytest.approx(2**0.5, rel=1e-14)
     assert number_value(cert, "n2") == -1.75
