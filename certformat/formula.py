@@ -11,7 +11,8 @@ one canonical form, established once, by :func:`make_atom`:
 Atoms whose polynomial is constant are decided at construction and become
 :class:`BoolConst`.  Polynomials are python-flint ``fmpz_mpoly`` objects in the
 context :func:`poly_context` of the problem's variables (declaration order).
-Generators are named ``x0, x1, ...``; the user's names live in
+Generators are named ``x1, x2, ...`` (the k-th declared variable is ``xk``, as the
+certificate's variables are named); the user's names live in
 :attr:`Problem.variables`, so no user spelling can collide with flint syntax.
 """
 from __future__ import annotations
@@ -33,8 +34,8 @@ MIRRORED = {"<": ">", "<=": ">=", "=": "=", "!=": "!=", ">=": "<=", ">": "<"}
 
 @cache
 def poly_context(nvars: int) -> fmpz_mpoly_ctx:
-    """The flint context of polynomials in ``x0 .. x(nvars-1)``, lex order."""
-    return fmpz_mpoly_ctx.get(tuple(f"x{i}" for i in range(max(nvars, 1))), "lex")
+    """The flint context of polynomials in ``x1 .. xn``, lex order (one unused generator when n = 0)."""
+    return fmpz_mpoly_ctx.get(tuple(f"x{i}" for i in range(1, max(nvars, 1) + 1)), "lex")
 
 
 def relation_holds(rel: str, sign: int) -> bool:

@@ -101,7 +101,7 @@ class Arithmetic:
     """
 
     def __init__(self, nvars: int, path: str):
-        self.ctx = fmpq_mpoly_ctx.get(tuple(f"x{i}" for i in range(max(nvars, 1))), "lex")
+        self.ctx = fmpq_mpoly_ctx.get(tuple(f"x{i}" for i in range(1, max(nvars, 1) + 1)), "lex")
         self.integer_ctx = poly_context(nvars)
         self.nvars = nvars
         self.path = path

@@ -14,7 +14,7 @@ from flint import fmpq
 
 from certformat.certificate import Certificate, Literal
 from certformat.clauses import ClausalForm, clausal_form
-from certformat.formula import NEGATED, Problem, evaluate, relation_holds
+from certformat.formula import NEGATED, Problem, evaluate, poly_context, relation_holds
 
 from . import polys as P
 from .algebraic import KernelError, RealAlgebraic, reduced
@@ -41,7 +41,7 @@ def check(problem: Problem, cert: Certificate, limits: Limits | None = None) -> 
     try:
         require_hash(problem, cert)
         order = require_variables(problem, cert)
-        ctx = P.context(len(order))
+        ctx = poly_context(len(order))
         polys = {pid: P.to_flint(p, ctx) for pid, p in cert.polys.items()}
         defining = {nid: P.to_flint(num.poly, P.Z) for nid, num in cert.numbers.items() if num.poly}
         require_size(cert, polys | defining, limits)       # on sparse polynomials, before any is dense
@@ -124,7 +124,7 @@ def atom_literals(problem: Problem, cert: Certificate, cf: ClausalForm, order: l
             raise Rejection("ATOM", f"polynomial {claim.poly} is not declared", claim.line)
         atom = cf.atoms[k - 1]
         mine = P.permuted(atom.poly, order) if order != sorted(order) else atom.poly
-        if not P.same_terms(mine, polys[claim.poly]) or atom.rel != claim.rel:
+        if mine != polys[claim.poly] or atom.rel != claim.rel:
             raise Rejection("ATOM", f"{aid} is not the problem's atom {k}", claim.line)
         out[aid] = (polys[claim.poly], atom.rel)
         out["~" + aid] = (polys[claim.poly], NEGATED[atom.rel])

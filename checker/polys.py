@@ -1,7 +1,7 @@
 """Polynomials as the checker needs them: exact flint objects in the certificate's variables.
 
-Every polynomial here lives in ``context(n)``, whose generators are the certificate's
-``x1 … xn`` (lex order, so ``xn`` is the last variable).  "Level" of a polynomial is
+Every polynomial here lives in ``poly_context(n)``, whose generators ``x1 … xn`` are the
+certificate's variables (lex order, so ``xn`` is the last).  "Level" of a polynomial is
 the index of its last variable (0 for constants), as in cylindrical algebraic
 decomposition (Collins 1975).
 """
@@ -12,10 +12,6 @@ from typing import Iterator
 
 from flint import fmpq_mpoly, fmpz_mpoly, fmpz_mpoly_ctx, fmpz_poly
 
-
-def context(nvars: int) -> fmpz_mpoly_ctx:
-    """The flint context of polynomials in ``x1 … xn``, lex order (one unused generator when n = 0)."""
-    return fmpz_mpoly_ctx.get(tuple(f"x{i}" for i in range(1, max(nvars, 1) + 1)), "lex")
 
 
 Z = fmpz_mpoly_ctx.get(("z",), "lex")
@@ -36,14 +32,9 @@ def univariate(g: fmpz_mpoly) -> fmpz_poly:
 
 
 def permuted(poly: fmpz_mpoly, order: list[int]) -> fmpz_mpoly:
-    """Rename problem variable ``order[k]`` to variable ``k`` (0-based) of the problem's context."""
+    """Rename problem variable ``order[k]`` to certificate variable ``k`` (0-based)."""
     ctx = poly.context()
     return ctx.from_dict({tuple(e[j] for j in order): c for e, c in zip(poly.monoms(), poly.coeffs())})
-
-
-def same_terms(f: fmpz_mpoly, g: fmpz_mpoly) -> bool:
-    """f and g have the same terms (exponents in generator order, coefficients), whatever their generators' names."""
-    return f.monoms() == g.monoms() and f.coeffs() == g.coeffs()
 
 
 def level(f: fmpz_mpoly) -> int:

@@ -53,7 +53,7 @@ from .polys import coefficients_in
 def _require_variables(p: fmpz_mpoly, count: int) -> None:
     """Raise KernelError if p involves a variable x_i with i >= count."""
     if any(d > 0 for d in p.degrees()[count:]):
-        raise KernelError(f"{p} involves a variable beyond x{count - 1}")
+        raise KernelError(f"{p} involves a variable beyond x{count}")
 
 
 def _substitute_rationals(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> fmpz_mpoly:
@@ -81,7 +81,7 @@ def at_rational_point(p: fmpz_mpoly, values: Sequence[fmpq]) -> fmpq_poly:
     """p with x_i = values[i] substituted exactly, as a polynomial in x_k, k = len(values)."""
     k, degrees = len(values), p.degrees()
     if max(degrees[k + 1:], default=0) > 0:
-        raise KernelError(f"{p} involves a variable beyond x{k}")
+        raise KernelError(f"{p} involves a variable beyond x{k + 1}")
     coeffs = [0] * (degrees[k] + 1 if k < len(degrees) else 1)
     for exps, c in zip(p.monoms(), p.coeffs()):
         for v, e in zip(values, exps):
@@ -173,7 +173,7 @@ def is_nullified(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> bool:
     point: whether p with the point substituted is the zero polynomial)."""
     k = len(point)
     if p.context().nvars() <= k:
-        raise KernelError(f"no variable x{k} in the context of {p}")
+        raise KernelError(f"no variable x{k + 1} in the context of {p}")
     _require_variables(p, k + 1)
     point = [reduced(a) for a in point]
     if all(a.is_rational() for a in point):
@@ -203,14 +203,14 @@ def real_roots_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> list[RealAlg
     """The distinct real roots of p(point, x_k), k = len(point), increasing, each checked (module docstring)."""
     k = len(point)
     if p.context().nvars() <= k:
-        raise KernelError(f"no variable x{k} in the context of {p}")
+        raise KernelError(f"no variable x{k + 1} in the context of {p}")
     _require_variables(p, k + 1)
     point = [reduced(a) for a in point]
     if all(a.is_rational() for a in point):
         return roots_of_substituted(p, at_rational_point(p, [a.low for a in point]))
     q = _substitute_rationals(p, point)
     if q.is_zero() or is_nullified(p, point):
-        raise KernelError(f"{p} vanishes identically in x{k} at the point")
+        raise KernelError(f"{p} vanishes identically in x{k + 1} at the point")
     candidates = real_roots(_norm(q, point, k))
     if all(d == 0 for d in q.degrees()[:k]):
         return candidates

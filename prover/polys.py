@@ -1,7 +1,7 @@
 """Fast polynomial helpers for the prover's kernel (flint objects end to end).
 
 Multivariate polynomials are python-flint ``fmpz_mpoly`` (or ``fmpq_mpoly``
-after rational substitution) in the problem's context ``x0 .. x(n-1)``, lex
+after rational substitution) in the problem's context ``x1 .. xn``, lex
 order.  Univariate ones are ``fmpz_poly`` / ``fmpq_poly``.
 
 Profiling notes (python-flint 0.9) that shaped these helpers:

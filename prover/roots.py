@@ -429,9 +429,9 @@ def _field_of(algs: tuple[RealAlg, ...]) -> _Field:
 
 
 def _require_variables(p, count: int) -> None:
-    """ValueError unless ``p`` involves only ``x0 .. x(count-1)``."""
+    """ValueError unless ``p`` involves only the first ``count`` variables."""
     if any(d > 0 for d in p.degrees()[count:]):
-        raise ValueError(f"{p} involves variables beyond x{count - 1}")
+        raise ValueError(f"{p} involves variables beyond x{count}")
 
 
 def _restrict(p, point: Sequence[RealAlg]):
@@ -447,7 +447,7 @@ def _restrict(p, point: Sequence[RealAlg]):
 
 def sign_at(p, point: Sequence[RealAlg]) -> int:
     """The exact sign of ``p`` at ``point``; ``p`` involves only
-    ``x0 .. x(len(point)-1)``."""
+    the first ``len(point)`` variables."""
     _require_variables(p, len(point))
     if all(a.value is not None for a in point):
         return _sign(evaluate(p, [a.value for a in point]))
@@ -464,7 +464,7 @@ def _over_field(p, point: Sequence[RealAlg]):
     polynomial over the field."""
     k = len(point)
     if k >= p.context().nvars():
-        raise ValueError(f"no variable x{k} in the context of {p}")
+        raise ValueError(f"no variable x{k + 1} in the context of {p}")
     _require_variables(p, k + 1)
     q, alg = _restrict(p, point)
     if not alg:

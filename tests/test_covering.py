@@ -183,7 +183,7 @@ def test_passed_up_follows_the_conservative_rule():
     got = {str(store.polys[q]) for q in up}
     # chain: leading coefficients 1 and 1 (constants); disc(circle) = -4(x^2-1) -> x-1, x+1;
     # res(circle, line) = 2x^2 - 1; lower factor x of the direct literal.
-    assert got == {"x0 - 1", "x0 + 1", "2*x0^2 - 1", "x0"}
+    assert got == {"x1 - 1", "x1 + 1", "2*x1^2 - 1", "x1"}
 
 
 def test_covering_returns_a_model_or_a_tree():
@@ -313,7 +313,7 @@ def test_declared_sets_equal_what_the_checker_derives():
     text = prove(problem).certificate_text
     cert = read_certificate(text)
     order = require_variables(problem, cert)
-    polys = {pid: CP.to_flint(p, CP.context(2)) for pid, p in cert.polys.items()}
+    polys = {pid: CP.to_flint(p, poly_context(2)) for pid, p in cert.polys.items()}
     numbers = {nid: checked_number(nid, num, num.poly and CP.to_flint(num.poly, CP.Z), Limits()) for nid, num in cert.numbers.items()}
     literals = atom_literals(problem, cert, clausal_form(problem), order, polys)
     compared = 0
