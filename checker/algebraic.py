@@ -39,7 +39,6 @@ Algorithms, each with the theorem it rests on:
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
 from fractions import Fraction
 from functools import cmp_to_key
 
@@ -71,19 +70,23 @@ def _to_fmpq(q) -> fmpq:
     raise TypeError(f"not an exact rational: {q!r}")
 
 
-@dataclass(frozen=True)
 class RealAlgebraic:
-    """The unique real root of `poly` in the open interval (low, high); or, when low == high, the rational low (and then poly(low) == 0)."""
-    poly: fmpz_poly
-    low: fmpq
-    high: fmpq
-    minimal: bool = field(default=False, compare=False)
-    """Set only by :func:`reduced` and :func:`isolate`: already checked, with an irreducible poly."""
+    """The unique real root of `poly` in the open interval (low, high); or, when low == high, the rational low (and
+    then poly(low) == 0). ``minimal`` is set only by :func:`reduced` and :func:`isolate`: already checked, with an
+    irreducible poly. Never changed once made (a plain class with slots: a check makes many)."""
+    __slots__ = ("poly", "low", "high", "minimal")
 
-    def __post_init__(self):
-        if not (isinstance(self.poly, fmpz_poly) and isinstance(self.low, fmpq)
-                and isinstance(self.high, fmpq)):
+    def __init__(self, poly: fmpz_poly, low: fmpq, high: fmpq, minimal: bool = False):
+        if not (isinstance(poly, fmpz_poly) and isinstance(low, fmpq) and isinstance(high, fmpq)):
             raise TypeError("RealAlgebraic needs an fmpz_poly and two fmpq bounds")
+        self.poly, self.low, self.high, self.minimal = poly, low, high, minimal
+
+    def __eq__(self, other) -> bool:
+        """Structural, like the hash: the same polynomial and interval (numeric equality is :func:`compare`)."""
+        return isinstance(other, RealAlgebraic) and (self.poly, self.low, self.high) == (other.poly, other.low, other.high)
+
+    def __repr__(self) -> str:
+        return f"RealAlgebraic({self.poly!r}, {self.low!r}, {self.high!r})"
 
     @staticmethod
     def rational(q) -> RealAlgebraic:
@@ -307,10 +310,11 @@ def real_roots(f: fmpz_poly, memo: dict | None = None) -> list[RealAlgebraic]:
 def roots_of_factors(factors, memo: dict | None = None) -> list[RealAlgebraic]:
     """The real roots of distinct polynomials irreducible over Q (so no root is shared), increasing: -g0/g1 for a
     linear g, the closed form for a quadratic, else :func:`isolate` once per g kept in ``memo`` (it depends on g alone)."""
-    memo = {} if memo is None else memo
+    memo, roots = {} if memo is None else memo, []
     for g in factors:
-        if g.degree() > 2 and str(g) not in memo:
-            memo[str(g)] = isolate(g)
-    roots = (z for g in factors for z in ([RealAlgebraic.rational(fmpq(-g[0], g[1]))] if g.degree() == 1 else
-                                          memo[str(g)] if g.degree() > 2 else isolate_quadratic(g)))
-    return sorted(roots, key=cmp_to_key(compare))
+        if g.degree() > 2:
+            k = str(g)
+            roots += memo[k] if k in memo else memo.setdefault(k, isolate(g))
+        else:
+            roots += [RealAlgebraic.rational(fmpq(-g[0], g[1]))] if g.degree() == 1 else isolate_quadratic(g)
+    return roots if len(factors) == 1 else sorted(roots, key=cmp_to_key(compare))   # isolate's are increasing
