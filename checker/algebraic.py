@@ -13,29 +13,32 @@ Algorithms, each with the theorem it rests on:
   ``(a, b)`` is ``V(a) - V(b)``, where ``V(x)`` counts the sign changes in the
   Sturm sequence ``p, p', -rem(p, p'), ...`` evaluated at ``x``.  Sequences are
   computed over the rationals (``fmpq_poly``), so every remainder is exact.
-* **Minimal form** -- a number is first reduced to the irreducible factor of its
-  defining polynomial that vanishes at it (factorization over the integers;
-  Gauss's lemma).  An irreducible polynomial is squarefree, and when its degree
-  is at least 2 it has no rational root, so a bisection midpoint is never a
-  root; a factor of degree 1 *is* the rational number.
+* **Isolating and minimal forms** -- a number is *isolating* once its polynomial is known
+  squarefree with exactly one root in ``(low, high)`` and none at the ends (checked by
+  Sturm's theorem, or so by construction); it is *minimal* when moreover the polynomial is
+  irreducible (factorization over the integers; Gauss's lemma).  After the isolating check,
+  the irreducible factor that vanishes at the number is the one that changes sign across
+  the interval; a factor of degree 1 *is* the rational number.
 * **Bisection** -- a squarefree polynomial changes sign at each of its (simple)
   roots and nowhere else; with exactly one root in ``(low, high)`` the sign at
   the midpoint tells which half holds it (intermediate value theorem).
-* **Isolation** -- a quadratic by its closed form (:func:`isolate_quadratic`).
-  Otherwise all complex roots lie in ``|z| < B`` (Fujiwara's bound,
-  :func:`root_bound`), and ``(-B, B)`` is halved until each piece has 0 or 1
-  sign variations by Descartes' rule of signs after the Möbius map of the piece
-  onto ``(0, oo)`` (:func:`descartes_bound`; Collins and Akritas 1976).  For a
+* **Isolation** -- of the squarefree part, without factoring: a quadratic by its closed
+  form (:func:`isolate_quadratic`).  Otherwise all complex roots lie in ``|z| < B``
+  (Fujiwara's bound, :func:`root_bound`), and ``(-B, B)`` is split until each piece has 0
+  or 1 sign variations by Descartes' rule of signs after the Möbius map of the piece onto
+  ``(0, oo)`` (:func:`descartes_bound`; Collins and Akritas 1976), at its midpoint or, if
+  that is a (rational) root, nearer its right end, so no end is ever a root.  For a
   squarefree polynomial this ends (Vincent's theorem; Alesina and Galuzzi 1998).
 * **Refinement** -- Newton's iterates (in Arb arithmetic) only *suggest* a narrow
   interval; it is used when ``g`` changes sign across it, otherwise the interval is halved.
 * **Signs at rationals** -- ``g(x)`` at a rational ``x`` is first enclosed by an Arb
   ball; a ball that excludes zero proves the sign (Arb rounds outward), otherwise the
   exact rational value decides (:func:`sign_of_value`).
-* **Equality** -- two irreducible primitive polynomials with a common root are
-  equal up to sign (the minimal polynomial is unique), so two numbers are equal
-  iff their minimal forms share the polynomial and a root in the intersection
-  of their intervals (a sign change across it).  Unequal numbers are separated by bisecting both.
+* **Equality** -- of isolating numbers: a rational ``r`` is the number iff it lies in its
+  interval and is a root of its polynomial; two irrational ones are equal iff the gcd of
+  their polynomials has a root in the intersection of their intervals, that is, changes
+  sign across it (it has at most one simple root there and none at its ends).  Unequal
+  numbers are separated by bisecting both.
 """
 from __future__ import annotations
 
@@ -72,14 +75,15 @@ def _to_fmpq(q) -> fmpq:
 
 class RealAlgebraic:
     """The unique real root of `poly` in the open interval (low, high); or, when low == high, the rational low (and
-    then poly(low) == 0). ``minimal`` is set only by :func:`reduced` and :func:`isolate`: already checked, with an
-    irreducible poly. Never changed once made (a plain class with slots: a check makes many)."""
-    __slots__ = ("poly", "low", "high", "minimal")
+    then poly(low) == 0). ``isolating``: already checked (module docstring), set only by :func:`reduced` and the
+    isolations; ``minimal``: isolating with an irreducible poly. Never changed once made (a plain class with
+    slots: a check makes many)."""
+    __slots__ = ("poly", "low", "high", "minimal", "isolating")
 
-    def __init__(self, poly: fmpz_poly, low: fmpq, high: fmpq, minimal: bool = False):
+    def __init__(self, poly: fmpz_poly, low: fmpq, high: fmpq, minimal: bool = False, isolating: bool = False):
         if not (isinstance(poly, fmpz_poly) and isinstance(low, fmpq) and isinstance(high, fmpq)):
             raise TypeError("RealAlgebraic needs an fmpz_poly and two fmpq bounds")
-        self.poly, self.low, self.high, self.minimal = poly, low, high, minimal
+        self.poly, self.low, self.high, self.minimal, self.isolating = poly, low, high, minimal, isolating or minimal
 
     def __eq__(self, other) -> bool:
         """Structural, like the hash: the same polynomial and interval (numeric equality is :func:`compare`)."""
@@ -174,14 +178,16 @@ def check_isolating(a: RealAlgebraic) -> None:
 # Minimal form, bisection, enclosures.
 
 def reduced(a: RealAlgebraic) -> RealAlgebraic:
-    """`a` checked and redefined by the irreducible factor that vanishes at it (a rational if that factor is linear)."""
+    """`a` checked and redefined by the irreducible factor that vanishes at it (a rational if that factor is linear):
+    each factor g has no root at the ends and at most one, simple, inside, so it holds a's iff it changes sign."""
     if a.minimal:
         return a
-    check_isolating(a)
+    if not a.isolating:
+        check_isolating(a)
     if a.is_rational():
         return a
     for g, _ in a.poly.factor()[1]:
-        if count_roots(sturm_sequence(fmpq_poly(g)), a.low, a.high) == 1:
+        if sign_of_value(g, a.low) * sign_of_value(g, a.high) < 0:
             if g.degree() == 1:
                 return RealAlgebraic.rational(fmpq(-g[0], g[1]))
             return RealAlgebraic(g, a.low, a.high, minimal=True)
@@ -189,7 +195,7 @@ def reduced(a: RealAlgebraic) -> RealAlgebraic:
 
 
 def _halve(a: RealAlgebraic) -> RealAlgebraic:
-    """The half of a's interval that holds it, `a` in minimal form (intermediate value theorem at a simple root)."""
+    """The half of a's interval that holds it, `a` isolating (intermediate value theorem at a simple root)."""
     if a.is_rational():
         return a
     mid = (a.low + a.high) / 2
@@ -197,8 +203,8 @@ def _halve(a: RealAlgebraic) -> RealAlgebraic:
     if at_mid == 0:
         return RealAlgebraic.rational(mid)
     if at_mid == sign_of_value(a.poly, a.low):
-        return RealAlgebraic(a.poly, mid, a.high, a.minimal)
-    return RealAlgebraic(a.poly, a.low, mid, a.minimal)
+        return RealAlgebraic(a.poly, mid, a.high, a.minimal, True)
+    return RealAlgebraic(a.poly, a.low, mid, a.minimal, True)
 
 
 def refine(a: RealAlgebraic, width: fmpq) -> RealAlgebraic:
@@ -209,7 +215,7 @@ def refine(a: RealAlgebraic, width: fmpq) -> RealAlgebraic:
         if hint is not None:
             low, high = max(hint - width / 2, a.low), min(hint + width / 2, a.high)
             if low < high and sign_of_value(a.poly, low) * sign_of_value(a.poly, high) < 0:
-                return RealAlgebraic(a.poly, low, high, a.minimal)
+                return RealAlgebraic(a.poly, low, high, a.minimal, True)
         for _ in range(4):          # a missed hint: narrow by bisection before the next
             a = _halve(a) if a.high - a.low > width else a
     return a
@@ -243,21 +249,23 @@ def ball(a: RealAlgebraic) -> arb:
 # Comparison and roots of univariate polynomials.
 
 def _same_number(a: RealAlgebraic, b: RealAlgebraic) -> bool:
-    """Equality of numbers in minimal form: the same minimal polynomial g (it is unique) and a root of g,
-    which is simple, in the intersection of their intervals: a sign change (intermediate value theorem)."""
+    """Equality of isolating numbers: a rational r is x iff x.low < r < x.high and x.poly(r) = 0; two others iff
+    g = gcd(a.poly, b.poly) has a root in the intersection (l, h) of their intervals. g divides both, so it has no
+    root at l or h (each an end of one interval) and at most one, simple, inside: iff g(l) g(h) < 0 (IVT)."""
     if a.is_rational() or b.is_rational():
-        return a.is_rational() and b.is_rational() and a.low == b.low
-    if a.poly != b.poly and a.poly != -b.poly:
-        return False
-    low, high = max(a.low, b.low), min(a.high, b.high)
-    return low < high and sign_of_value(a.poly, low) * sign_of_value(a.poly, high) < 0
+        if a.is_rational() and b.is_rational():
+            return a.low == b.low
+        r, x = (a.low, b) if a.is_rational() else (b.low, a)
+        return x.low < r < x.high and x.poly(r) == 0
+    g, low, high = a.poly.gcd(b.poly), max(a.low, b.low), min(a.high, b.high)
+    return g.degree() > 0 and low < high and sign_of_value(g, low) * sign_of_value(g, high) < 0
 
 
 def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:
-    """The exact sign of a - b: strictly disjoint intervals decide it, else equality by minimal forms, else bisection."""
+    """The exact sign of a - b: as isolating numbers, strictly disjoint intervals decide it, else equality, else bisection."""
     if a.is_rational() and b.is_rational():
         return (a.low > b.low) - (a.low < b.low)
-    a, b = reduced(a), reduced(b)
+    a, b = (x if x.isolating else reduced(x) for x in (a, b))
     if not (a.high < b.low or b.high < a.low) and _same_number(a, b):
         return 0
     while True:
@@ -268,8 +276,9 @@ def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:
         a, b = _halve(a), _halve(b)
 
 
-def isolate(g: fmpz_poly) -> list[RealAlgebraic]:
-    """Isolating intervals, increasing, for the real roots of g, irreducible of degree >= 2 (module docstring: Isolation)."""
+def isolate(g: fmpz_poly, irreducible: bool = False) -> list[RealAlgebraic]:
+    """Isolating intervals, increasing, for the real roots of g, squarefree of degree >= 2 (module docstring:
+    Isolation); in minimal form when g is irreducible."""
     if g.degree() == 2:
         return isolate_quadratic(g)
     bound = fmpq(root_bound(g))
@@ -278,43 +287,49 @@ def isolate(g: fmpz_poly) -> list[RealAlgebraic]:
         low, high = pending.pop()
         n = descartes_bound(g, low, high)
         if n == 1:
-            found.append(RealAlgebraic(g, low, high, minimal=True))
+            found.append(RealAlgebraic(g, low, high, irreducible, True))
         elif n > 1:
             mid = (low + high) / 2
+            while g(mid) == 0:              # a rational root: split beside it, so that no end is a root
+                mid = (mid + high) / 2
             pending += [(mid, high), (low, mid)]
     return found
 
 
 def isolate_quadratic(g: fmpz_poly) -> list[RealAlgebraic]:
-    """The roots (-b ± sqrt(D)) / 2a of irreducible g = a z^2 + b z + c, D = b^2 - 4ac: with s = isqrt(D 4^64),
-    s < sqrt(D) 2^64 < s + 1 (D is no square), so each lies strictly inside its interval below."""
+    """The roots (-b ± sqrt(D)) / 2a of squarefree g = a z^2 + b z + c, D = b^2 - 4ac > 0: rational if D is a square;
+    else with s = isqrt(D 4^64), s < sqrt(D) 2^64 < s + 1, so each lies strictly inside its interval below."""
     c, b, a = g.coeffs()
     disc = b * b - 4 * a * c
     if disc < 0:
         return []
-    s = (disc << 128).isqrt()
     if disc.isqrt() ** 2 == disc:
-        raise KernelError(f"{g} is not irreducible")
+        return sorted((RealAlgebraic.rational(fmpq(-b + d, 2 * a)) for d in (-disc.isqrt(), disc.isqrt())),
+                      key=lambda z: z.low)
+    s = (disc << 128).isqrt()
     ends = sorted(fmpq((-b << 64) + d, a << 65) for d in (-s - 1, -s, s, s + 1))
     return [RealAlgebraic(g, ends[0], ends[1], minimal=True),
             RealAlgebraic(g, ends[2], ends[3], minimal=True)]
 
 
 def real_roots(f: fmpz_poly, memo: dict | None = None) -> list[RealAlgebraic]:
-    """The distinct real roots of f != 0 in increasing order, each isolated per irreducible factor of f (:func:`isolate`)."""
+    """The distinct real roots of f != 0 in increasing order: those of its squarefree part f / gcd(f, f')
+    (the same roots, each simple), isolated without factoring (:func:`roots_of_factors`)."""
     if f.is_zero():
         raise KernelError("the zero polynomial has every number as a root")
-    return roots_of_factors([f] if f.degree() == 1 else [g for g, _ in f.factor()[1]], memo)
+    s = f // f.gcd(f.derivative()) if f.degree() > 1 else f
+    return roots_of_factors([s] if s.degree() > 0 else [], memo, irreducible=False)
 
 
-def roots_of_factors(factors, memo: dict | None = None) -> list[RealAlgebraic]:
-    """The real roots of distinct polynomials irreducible over Q (so no root is shared), increasing: -g0/g1 for a
-    linear g, the closed form for a quadratic, else :func:`isolate` once per g kept in ``memo`` (it depends on g alone)."""
+def roots_of_factors(factors, memo: dict | None = None, irreducible: bool = True) -> list[RealAlgebraic]:
+    """The real roots of distinct irreducible polynomials (no root is shared), or of a single squarefree one,
+    increasing: -g0/g1 for a linear g, the closed form for a quadratic, else :func:`isolate` once per g kept in
+    ``memo`` (it depends on g alone)."""
     memo, roots = {} if memo is None else memo, []
     for g in factors:
         if g.degree() > 2:
-            k = str(g)
-            roots += memo[k] if k in memo else memo.setdefault(k, isolate(g))
+            k = (str(g), irreducible)
+            roots += memo[k] if k in memo else memo.setdefault(k, isolate(g, irreducible))
         else:
             roots += [RealAlgebraic.rational(fmpq(-g[0], g[1]))] if g.degree() == 1 else isolate_quadratic(g)
     return roots if len(factors) == 1 else sorted(roots, key=cmp_to_key(compare))   # isolate's are increasing

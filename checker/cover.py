@@ -35,7 +35,7 @@ class Replay:
     factor_memo: dict[str, dict] = field(default_factory=dict)
     projections: dict[tuple, set] = field(default_factory=dict)
     seen: dict[int, tuple] = field(default_factory=dict)
-    isolated: dict[str, list] = field(default_factory=dict)
+    isolated: dict[tuple, list] = field(default_factory=dict)
 
     def _of(self, f: fmpz_mpoly) -> tuple:
         """(f, P.key(f), P.level(f)), once per object in this check (the entry keeps f alive, so

@@ -46,7 +46,8 @@ from typing import Sequence
 
 from flint import arb, ctx, fmpq, fmpq_poly, fmpz_mpoly, fmpz_mpoly_ctx, fmpz_poly
 
-from .algebraic import KernelError, RealAlgebraic, _sign, ball, real_roots, reduced, refine, root_bound
+from .algebraic import (KernelError, RealAlgebraic, _sign, ball, real_roots, reduced, refine, root_bound,
+                        roots_of_factors)
 from .polys import coefficients_in
 
 
@@ -211,7 +212,7 @@ def real_roots_at(p: fmpz_mpoly, point: Sequence[RealAlgebraic]) -> list[RealAlg
     q = _substitute_rationals(p, point)
     if q.is_zero() or is_nullified(p, point):
         raise KernelError(f"{p} vanishes identically in x{k + 1} at the point")
-    candidates = real_roots(_norm(q, point, k))
+    candidates = roots_of_factors([g for g, _ in _norm(q, point, k).factor()[1]])   # a norm splits, often finely
     if all(d == 0 for d in q.degrees()[:k]):
         return candidates
     cuts = _separators(candidates)

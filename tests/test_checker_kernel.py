@@ -234,7 +234,7 @@ def test_roots_over_sqrt2_worked_example():
     expected = [-5, -sympy.root(2, 4), sympy.root(2, 4), 1 + sympy.sqrt(2)]
     assert len(roots) == 4
     assert all(contains(r, e) for r, e in zip(roots, expected))
-    assert roots[0].is_rational() and roots[0].low == -5
+    assert reduced(roots[0]).is_rational() and reduced(roots[0]).low == -5   # a rational value, isolated or a point
 
 
 def test_roots_over_two_algebraic_coordinates():
@@ -257,7 +257,7 @@ def test_degenerate_norm_is_handled():
     point = [SQRT2[0], MINUS_SQRT2[0]]
     assert not is_nullified((x0 - x1) * x2, point)
     roots = real_roots_at((x0 - x1) * x2, point)
-    assert len(roots) == 1 and roots[0].is_rational() and roots[0].low == 0
+    assert len(roots) == 1 and reduced(roots[0]).is_rational() and reduced(roots[0]).low == 0
     # (x0 - x1)(x2^2 - x0): roots ±2^(1/4) (by inspection)
     roots = real_roots_at((x0 - x1) * (x2 ** 2 - x0), point)
     assert len(roots) == 2 and contains(roots[1], sympy.root(2, 4))
@@ -343,6 +343,44 @@ def test_sign_at_rational_points_matches_fractions(terms, values):
     assert sign_at(to_flint(terms), point) == (value > 0) - (value < 0)
 
 
+@pytest.mark.parametrize("coeffs", [
+    [0, -1, 0, 1],                      # x^3 - x: the first split point, 0, is a root
+    [0, 6, -5, -2, 1],                  # x (x - 3)(x^2 + x - 2) = x (x - 3)(x - 1)(x + 2)
+    [0, 0, 0, -1, 0, 1],                # x^3 (x^2 - 1): squarefree part x^3 - x
+    [12, -4, -3, 1],                    # (x^2 - 4)(x - 3)
+], ids=["x^3-x", "four rational roots", "multiple root at a split point", "(x^2-4)(x-3)"])
+def test_isolation_splits_beside_rational_roots(coeffs):
+    """Isolation of the squarefree part (SOUNDNESS ROOTS): a split point that is a root is moved, so every
+    interval isolates one root with no root at its ends; values checked against sympy (reference library)."""
+    f = fmpz_poly(coeffs)
+    expected = sorted(set(sympy.real_roots(sympy.Poly(list(reversed(f.coeffs())), Y))), key=float)
+    ours = real_roots(f)
+    assert len(ours) == len(expected)
+    for r, e in zip(ours, expected):
+        check_isolating(r)                          # Sturm: one root inside, none at the ends
+        assert contains(r, e)
+        assert compare(r, RealAlgebraic.rational(Fraction(int(e.p), int(e.q)))) == 0
+
+
+def test_equality_of_isolating_numbers_by_gcd():
+    """Two isolating numbers of different, reducible polynomials are equal iff their gcd changes sign across
+    the common part of their intervals (SOUNDNESS COMPARE); sqrt 2 = 1.41421356... (common-practice fact)."""
+    sqrt2_cubic = RealAlgebraic(fmpz_poly([-2, 0, 1]) * fmpz_poly([-7, 1]), fmpq(1), fmpq(2), isolating=True)
+    sqrt2_quartic = RealAlgebraic(fmpz_poly([-2, 0, 1]) * fmpz_poly([1, 0, 1]), fmpq(5, 4), fmpq(3), isolating=True)
+    root7 = RealAlgebraic(fmpz_poly([-2, 0, 1]) * fmpz_poly([-7, 1]), fmpq(3), fmpq(8), isolating=True)
+    assert compare(sqrt2_cubic, sqrt2_quartic) == 0
+    assert compare(sqrt2_cubic, root7) == -1 and compare(root7, sqrt2_quartic) == 1
+    assert compare(root7, RealAlgebraic.rational(7)) == 0     # a rational value inside an interval
+    assert compare(sqrt2_cubic, RealAlgebraic.rational(Fraction(141421, 100000))) == 1
+
+
+def test_reduced_picks_the_factor_that_changes_sign():
+    """NUMBER's minimal form: after the Sturm check, the factor holding the root changes sign across the interval."""
+    a = reduced(RealAlgebraic(fmpz_poly([-2, 0, 1]) * fmpz_poly([-3, 0, 1]), fmpq(3, 2), fmpq(2)))   # sqrt 3
+    assert a.poly == fmpz_poly([-3, 0, 1]) and a.minimal
+    assert reduced(RealAlgebraic(fmpz_poly([-2, 0, 1]) * fmpz_poly([-5, 2]), fmpq(2), fmpq(3))).low == fmpq(5, 2)
+
+
 @examples(200)
 @given(st.lists(st.tuples(small_factor, st.integers(1, 3)), min_size=1, max_size=3))
 def test_real_roots_match_sympy(factors):
@@ -358,7 +396,7 @@ def test_real_roots_match_sympy(factors):
         check_isolating(r)
         assert contains(r, e)
         if e.is_Rational:
-            assert r.is_rational() and Fraction(str(r.low)) == Fraction(int(e.p), int(e.q))
+            assert reduced(r).is_rational() and Fraction(str(reduced(r).low)) == Fraction(int(e.p), int(e.q))
     for a, b in zip(ours, ours[1:]):
         assert compare(a, b) == -1 and compare(b, a) == 1 and compare(a, a) == 0
 
@@ -631,12 +669,13 @@ def test_sign_of_value_matches_exact_evaluation(coeffs, x, make_root):
 @given(terms_strategy(1, 7, 6, 9))
 def test_node_memo_at_the_empty_sample_uses_known_factors(terms):
     """cover.AtSample at the empty sample: roots per known irreducible factor (SOUNDNESS ROOTS)
-    equal the kernel's roots of the univariate polynomial, which it factors itself (and which
-    test_real_roots_match_sympy checks against sympy)."""
+    equal the kernel's roots of the univariate polynomial, which it isolates on the squarefree part
+    (and which test_real_roots_match_sympy checks against sympy)."""
     from checker.cover import AtSample
     from checker.polys import irreducible_factors
     p = to_flint(terms)
     known = {str(p): {str(g): g for g in irreducible_factors(p)}}
     here = AtSample((), str, known.get)
     u = fmpz_poly([terms.get((d,), 0) for d in range(max(e[0] for e in terms) + 1)])
-    assert [(r.low, r.high) for r in here.roots(p)] == [(r.low, r.high) for r in real_roots(u)]
+    mine, theirs = here.roots(p), real_roots(u)
+    assert len(mine) == len(theirs) and all(compare(a, b) == 0 for a, b in zip(mine, theirs))
