@@ -157,8 +157,8 @@ def _seg(cert: Certificate, m, line: _Where) -> None:
     else:
         interval = Interval(_bound(m[2]), _bound(m[3]), point=False)
     seg = Segment(interval, m[4], line=line.line)
-    if m[5] is not None:
-        seg.literal = _literals(m[5])[0]
+    if m[5] is not None:                               # one literal: "~"? blanks? name
+        seg.literal = Literal(m[5].lstrip("~ \t"), m[5][0] != "~")
     else:
         seg.child, seg.keep = m[6], tuple(m[7].split())
     next(reversed(cert.nodes.values())).segments.append(seg)

@@ -88,7 +88,9 @@ def require_size(cert: Certificate, polys, limits: Limits) -> None:
     for pid, poly in polys.items():
         if max(poly.degrees(), default=0) > limits.max_degree:
             raise Rejection("LIMITS", f"{pid} has degree above {limits.max_degree}", cert.lines[pid])
-        if max(map(abs, poly.coeffs()), default=0).bit_length() > limits.max_coefficient_bits:
+        text = cert.polys[pid] if pid in cert.polys else cert.numbers[pid].poly   # d digits: under 4d bits
+        if 4 * len(text) > limits.max_coefficient_bits and \
+                max(map(abs, poly.coeffs()), default=0).bit_length() > limits.max_coefficient_bits:
             raise Rejection("LIMITS", f"{pid} has a coefficient over "
                             f"{limits.max_coefficient_bits} bits", cert.lines[pid])
     for nid, num in cert.numbers.items():

@@ -63,10 +63,6 @@ class Replay:
             self.factor_memo[k] = self.factor_memo[self.key(g)] = found
         return self.factor_memo[k]
 
-    @property
-    def nvars(self) -> int:
-        return len(self.cert.variables)
-
 
 def check_lemma(r: Replay, lemma: Lemma, literals: dict[str, tuple[fmpz_mpoly, str]]) -> None:
     """Rule LEMMA: the covering rooted at ``lemma.root`` refutes the lemma's literals."""
@@ -90,7 +86,7 @@ def check_node(r: Replay, node: Node, prefix: tuple[str, ...]) -> set[str]:
                         f"expected {' '.join(prefix) or '-'}", node.line)
     sample = tuple(number(r, n, node.line) for n in prefix)
     level = len(sample) + 1
-    if level > r.nvars:
+    if level > len(r.cert.variables):
         raise Rejection("COVER", f"node {node.id} is at level {level}, beyond the last variable",
                         node.line)
     require_sample_degree(r, sample, node.line)
@@ -285,7 +281,7 @@ def check_lift(r: Replay, seg: Segment, node: Node, here: AtSample, level: int, 
                high) -> list:
     """Rule LIFT: the child covers the next line; the declared set holds what it passes up and
     its level-``level`` members' nearest roots around the sample are the interval's bounds."""
-    if level >= r.nvars:
+    if level >= len(r.cert.variables):
         raise Rejection("LIFT", "the last variable's intervals cannot lift", seg.line)
     child = r.cert.nodes.get(seg.child)
     if child is None:
