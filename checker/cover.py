@@ -122,7 +122,7 @@ class AtSample:
         self.sample = sample if self.rational else tuple(refine(a, fmpq(1, 2 ** 64)) for a in sample)  # once, not per sign
 
     def _once(self, rule, f: fmpz_mpoly):
-        k = (rule, self.key(f))
+        k = (rule.__name__, self.key(f))        # the rules have distinct names; a bound method is a new object per use
         if k not in self.memo:
             self.memo[k] = rule(f, self.sample)
         return self.memo[k]
