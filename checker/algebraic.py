@@ -303,9 +303,9 @@ def isolate_quadratic(g: fmpz_poly) -> list[RealAlgebraic]:
     disc = b * b - 4 * a * c
     if disc < 0:
         return []
-    if disc.isqrt() ** 2 == disc:
-        return sorted((RealAlgebraic.rational(fmpq(-b + d, 2 * a)) for d in (-disc.isqrt(), disc.isqrt())),
-                      key=lambda z: z.low)
+    root = disc.isqrt()
+    if root * root == disc:
+        return sorted((RealAlgebraic.rational(fmpq(-b + d, 2 * a)) for d in (-root, root)), key=lambda z: z.low)
     s = (disc << 128).isqrt()
     ends = sorted(fmpq((-b << 64) + d, a << 65) for d in (-s - 1, -s, s, s + 1))
     return [RealAlgebraic(g, ends[0], ends[1], minimal=True),

@@ -13,6 +13,7 @@ from fractions import Fraction
 from flint import fmpz, fmpz_mpoly, fmpz_mpoly_ctx
 
 from certformat.certificate import Certificate, Number, Segment
+from certformat.formula import poly_context
 
 Poly = dict[tuple[int, ...], int]
 _BINARY_SIGN = re.compile(r"(?<=\w)([-+])")
@@ -45,8 +46,7 @@ def spaced(text: str) -> str:
 
 def poly_terms(text: str, nvars: int) -> Poly:
     """The exponent dictionary of a certificate's polynomial text in ``x1 … xn``."""
-    ctx = fmpz_mpoly_ctx.get(tuple(f"x{i}" for i in range(1, max(nvars, 1) + 1)), "lex")
-    f = fmpz_mpoly(compact(text), ctx)
+    f = fmpz_mpoly(compact(text), poly_context(nvars))       # generators x1 … xn, as in certificates
     return {tuple(int(x) for x in e)[:nvars]: int(c) for e, c in zip(f.monoms(), f.coeffs())}
 
 
