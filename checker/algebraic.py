@@ -265,7 +265,7 @@ def compare(a: RealAlgebraic, b: RealAlgebraic) -> int:
     """The exact sign of a - b: as isolating numbers, strictly disjoint intervals decide it, else equality, else bisection."""
     if a.is_rational() and b.is_rational():
         return (a.low > b.low) - (a.low < b.low)
-    a, b = (x if x.isolating else reduced(x) for x in (a, b))
+    a, b = a if a.isolating else reduced(a), b if b.isolating else reduced(b)
     if not (a.high < b.low or b.high < a.low) and _same_number(a, b):
         return 0
     while True:
